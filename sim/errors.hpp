@@ -1,0 +1,25 @@
+// Errors raised at the input boundary. They name the file, the line and the field, so a user can fix the input.
+#pragma once
+
+#include <stdexcept>
+#include <string>
+
+namespace wayward {
+
+class InputError : public std::runtime_error {
+public:
+    InputError(std::string file, long line, std::string field, const std::string& message)
+        : std::runtime_error(format(file, line, field, message)), file_(std::move(file)), line_(line),
+          field_(std::move(field)) {}
+    const std::string& file() const { return file_; }
+    long line() const { return line_; }
+    const std::string& field() const { return field_; }
+
+private:
+    static std::string format(const std::string& file, long line, const std::string& field, const std::string& msg);
+    std::string file_;
+    long line_;
+    std::string field_;
+};
+
+}  // namespace wayward
