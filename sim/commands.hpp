@@ -17,4 +17,14 @@ struct EphemerisArgs {
 };
 int run_ephemeris(const EphemerisArgs& args, std::ostream& out);
 
+struct NewArgs {
+    std::string scenario;
+    std::uint64_t seed = 1;
+    std::string out_dir;
+    std::string key_dir;  // default: OUT/answer-key
+    bool force = false;
+};
+// Makes an exercise folder and prints its summary.
+int run_new(const NewArgs& args, std::ostream& out);
+
 }  // namespace wayward

@@ -89,6 +89,10 @@ struct ObservingPlan {
     double field_radius_deg = 1.0;
     std::vector<Era> eras;
     std::vector<EarlySighting> early;
+    // What the team's brief gets wrong: relative sigma of the known planets' masses, and the sigma (degrees)
+    // of the errors in their approximate orbits (mean anomaly; a and e scaled to match).
+    double brief_mass_error = 0.0;
+    double brief_orbit_error_deg = 0.02;
 };
 
 struct PlausibilityRules {

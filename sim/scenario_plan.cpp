@@ -85,6 +85,11 @@ void read_observing_plan(TableReader& root, Scenario& sc) {
             r.fail(r.has("search_epoch_year") ? "search_epoch_year" : "search_epochs_year",
                    "must lie within the scenario's span (" + std::to_string(y0) + " to " + std::to_string(y1) + ")");
 
+    p.brief_mass_error = r.number_or("brief_mass_error", p.brief_mass_error);
+    if (!(p.brief_mass_error >= 0.0 && p.brief_mass_error < 0.5)) r.fail("brief_mass_error", "must be in [0, 0.5)");
+    p.brief_orbit_error_deg = r.number_or("brief_orbit_error_deg", p.brief_orbit_error_deg);
+    if (!(p.brief_orbit_error_deg >= 0.0 && p.brief_orbit_error_deg <= 10.0)) r.fail("brief_orbit_error_deg", "must be in [0, 10] degrees");
+
     const auto eras = r.tables("era");
     if (eras.empty()) r.fail("era", "at least one [[observing.era]] is required");
     for (std::size_t k = 0; k < eras.size(); ++k) {
@@ -92,6 +97,7 @@ void read_observing_plan(TableReader& root, Scenario& sc) {
         Era era;
         era.line = e.line();
         era.label = e.string("label").value_or("era " + std::to_string(k + 1));
+        if (era.label.find_first_of(",\"\n") != std::string::npos) e.fail("label", "must not contain commas, quotes or line breaks");
         era.start_year = e.required_number("start_year");
         era.end_year = e.required_number("end_year");
         if (!(era.end_year > era.start_year)) e.fail("end_year", "the era ends before it starts");

@@ -20,6 +20,14 @@ int main(int argc, char** argv) {
     c_eph->add_option("--seed", eph.seed, "seed for scenarios that draw their values")->capture_default_str();
     c_eph->add_option("--method", eph.method, "integration method (rkf78, dopri5, bulirsch-stoer)")->capture_default_str();
 
+    NewArgs nw;
+    auto* c_new = app.add_subcommand("new", "make an exercise folder from a scenario: observations, brief, sealed answer key");
+    c_new->add_option("scenario", nw.scenario, "scenario file (TOML)")->required();
+    c_new->add_option("--seed", nw.seed, "seed of the invented system and its observations")->capture_default_str();
+    c_new->add_option("--out", nw.out_dir, "exercise folder to write")->required();
+    c_new->add_option("--key-out", nw.key_dir, "folder for the answer key (default OUT/answer-key)");
+    c_new->add_flag("--force", nw.force, "overwrite an existing exercise");
+
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {
@@ -28,6 +36,7 @@ int main(int argc, char** argv) {
     }
     try {
         if (c_eph->parsed()) return run_ephemeris(eph, std::cout);
+        if (c_new->parsed()) return run_new(nw, std::cout);
     } catch (const InputError& e) {
         std::cerr << "wayward: " << e.what() << "\n";
         return 2;
