@@ -9,6 +9,9 @@
 
 #include "sim/errors.hpp"
 #include "sim/exercise.hpp"
+#include "sim/fileio.hpp"
+#include "sim/fit.hpp"
+#include "sim/report.hpp"
 #include "sim/generate.hpp"
 #include "sim/geometry.hpp"
 #include "sim/units.hpp"
@@ -93,6 +96,166 @@ int run_new(const NewArgs& args, std::ostream& out) {
     out << "Search epoch(s):";
     for (double y : sc.plan.search_epochs_year) out << " " << y;
     out << "; field radius " << sc.plan.field_radius_deg << " deg\n";
+    return 0;
+}
+
+}  // namespace wayward
+
+namespace wayward {
+
+int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& progress) {
+    const Exercise ex = load_exercise(args.dir);
+    ModelOptions mo;
+    if (args.neglect_light_time) mo.light_time = LightTime::neglected;
+    const KnownFit fit = fit_known(ex, mo, [&](const std::string& line) { progress << line << "\n" << std::flush; });
+    write_file_atomic(args.dir + "/residuals.csv", residuals_csv(fit.setup, fit.residuals));
+    residuals_plot(fit.setup, fit.residuals, args.dir + "/residuals.png",
+                   "O−C of the known-planets-only model: " + ex.brief.scenario_name);
+    out << "Known-planets-only fit of " << fit.setup.planets.size() << " planets to " << fit.setup.obs.size() << " observations ("
+        << fit.rejected << " set aside as outliers)\n";
+    print_residual_summary(fit, out);
+    out << "Wrote " << args.dir << "/residuals.csv and " << args.dir << "/residuals.png\n";
+    return 0;
+}
+
+}  // namespace wayward
+
+#include "sim/progress.hpp"
+#include "sim/score.hpp"
+#include "sim/toml_reader.hpp"
+
+namespace wayward {
+
+SolveOptions solve_options(const SolveArgs& a) {
+    SolveOptions o;
+    const std::string& d = a.distance;
+    auto number = [&](const std::string& text) {
+        char* end = nullptr;
+        const double v = std::strtod(text.c_str(), &end);
+        if (text.empty() || *end != '\0' || !std::isfinite(v))
+            throw InputError("", 0, "--distance", "\"" + text + "\" is not a number (use free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION])");
+        return v;
+    };
+    if (d == "free") {
+        o.distance = DistancePrior::free;
+    } else if (d.rfind("fixed:", 0) == 0) {
+        o.distance = DistancePrior::fixed;
+        o.distance_au = number(d.substr(6));
+        if (!(o.distance_au > 0)) throw InputError("", 0, "--distance", "a fixed distance must be positive");
+    } else if (d.rfind("gauss:", 0) == 0) {
+        o.distance = DistancePrior::gaussian;
+        const std::string rest = d.substr(6);
+        const auto comma = rest.find(',');
+        if (comma == std::string::npos) throw InputError("", 0, "--distance", "gauss needs a mean and a sigma: gauss:A,SIGMA");
+        o.distance_au = number(rest.substr(0, comma));
+        o.distance_sigma_au = number(rest.substr(comma + 1));
+        if (!(o.distance_au > 0 && o.distance_sigma_au > 0)) throw InputError("", 0, "--distance", "mean and sigma must be positive");
+    } else if (d == "spacing" || d.rfind("spacing:", 0) == 0) {
+        o.distance = DistancePrior::spacing;
+        if (d.size() > 8) o.spacing_sigma_fraction = number(d.substr(8));
+        if (!(o.spacing_sigma_fraction > 0 && o.spacing_sigma_fraction < 1))
+            throw InputError("", 0, "--distance", "the spacing prior's sigma fraction must be in (0, 1)");
+    } else {
+        throw InputError("", 0, "--distance", "unknown prior \"" + d + "\" (use free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION])");
+    }
+    o.circular = a.circular;
+    o.coplanar = a.coplanar;
+    o.epoch_year = a.epoch_year;
+    if (a.samples < 20 || a.samples > 100000) throw InputError("", 0, "--samples", "must be in [20, 100000]");
+    if (a.starts < 1 || a.starts > 64) throw InputError("", 0, "--starts", "must be in [1, 64]");
+    o.samples = a.samples;
+    o.starts = a.starts;
+    o.threads = a.threads;
+    if (a.neglect_light_time) o.model.light_time = LightTime::neglected;
+    return o;
+}
+
+int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_out) {
+    const SolveOptions o = solve_options(args);
+    const Exercise ex = load_exercise(args.dir);
+    Progress bar(progress_out, args.quiet);
+    SolveProgress sp;
+    sp.report = [&](const std::string& stage, double f) { bar.update(stage, f); };
+    const Solution s = solve(ex, o, sp);
+    bar.finish();
+    write_file_atomic(args.dir + "/solution.toml", solution_toml(s));
+
+    out << std::setprecision(4);
+    out << "Hidden body, " << o.describe() << " (" << s.model_runs << " model runs):\n";
+    out << "  local minima (best first):\n";
+    out << "    " << std::setw(9) << "a (au)" << std::setw(12) << "λ0 (deg)" << std::setw(12) << "mass" << std::setw(8) << "e"
+        << std::setw(12) << "chi2" << "\n";
+    for (const Minimum& m : s.minima)
+        out << "    " << std::setw(9) << m.orbit.semi_major_axis << std::setw(12) << wrap_two_pi(m.orbit.mean_longitude) / deg
+            << std::setw(12) << m.orbit.mass << std::setw(8) << std::hypot(m.orbit.k, m.orbit.h) << std::setw(12)
+            << std::setprecision(8) << m.chi2 << std::setprecision(4) << (m.converged ? "" : "  (not converged)") << "\n";
+    out << "  best: a = " << s.best.semi_major_axis << " +- " << s.distance_sigma_au << " au, mass = " << s.best.mass << " +- "
+        << s.mass_sigma << " solar masses, e = " << std::hypot(s.best.k, s.best.h) << "\n";
+    if (s.spacing_rule_au > 0) out << "  (the spacing rule's next distance is " << s.spacing_rule_au << " au)\n";
+    out << "  mass-distance correlation: " << s.mass_distance_correlation << "\n";
+    out << "  chi2 = " << s.chi2 << " for " << s.dof << " degrees of freedom" << (s.covariance_scaled ? " (covariance scaled by chi2/dof: some eras' sigma was estimated)" : "") << "\n";
+    const Prediction& p = s.prediction;
+    out << std::fixed << std::setprecision(3);
+    out << "Prediction for " << std::setprecision(2) << p.epoch_year << std::setprecision(3) << ": λ = " << p.lon / deg << " deg, β = "
+        << p.lat / deg << " deg, distance " << p.distance_au << " au\n";
+    out << "  1-sigma ellipse (linear): " << p.semi_major_arcsec / 60 << " x " << p.semi_minor_arcsec / 60
+        << " arcmin, major axis at " << std::setprecision(1) << p.orientation_deg << std::setprecision(3) << " deg from +λ towards +β\n";
+    out << "  1-sigma ellipse (" << p.samples_used << " samples): " << p.sampled_semi_major_arcsec / 60 << " x "
+        << p.sampled_semi_minor_arcsec / 60 << " arcmin; 90% of samples within " << p.radius90_arcsec / 60 << " arcmin\n";
+    out << "  search field radius: " << ex.brief.field_radius_deg * 60 << " arcmin\n";
+    out << std::defaultfloat;
+    out << "Wrote " << args.dir << "/solution.toml\n";
+    return 0;
+}
+
+int run_score(const ScoreArgs& args, std::ostream& out) {
+    const Exercise ex = load_exercise(args.dir);
+    Prediction p;
+    std::string source;
+    const bool own = args.lon_deg || args.lat_deg || args.epoch_year;
+    if (own) {
+        if (!(args.lon_deg && args.lat_deg && args.epoch_year))
+            throw InputError("", 0, "--lon", "a prediction of your own needs --lon, --lat and --epoch together");
+        if (!(*args.lat_deg >= -90 && *args.lat_deg <= 90)) throw InputError("", 0, "--lat", "must be in [-90, 90]");
+        p.lon = wrap_two_pi(*args.lon_deg * deg);
+        p.lat = *args.lat_deg * deg;
+        p.epoch_year = *args.epoch_year;
+        source = "your prediction";
+    } else if (!args.prediction_file.empty()) {
+        const toml::table t = detail::parse_toml(detail::read_text_file(args.prediction_file), args.prediction_file);
+        detail::TableReader r(t, args.prediction_file, "");
+        p.lon = wrap_two_pi(r.required_number("lon_deg") * deg);
+        p.lat = r.required_number("lat_deg") * deg;
+        if (!(p.lat >= -pi / 2 && p.lat <= pi / 2)) r.fail("lat_deg", "must be in [-90, 90]");
+        p.epoch_year = r.required_number("epoch_year");
+        r.finish();
+        source = args.prediction_file;
+    } else {
+        const std::string path = args.solution.empty() ? args.dir + "/solution.toml" : args.solution;
+        if (!std::filesystem::exists(path)) throw InputError(path, 0, "", "no solution here: run `wayward solve " + args.dir + "` first, or give --lon --lat --epoch");
+        const Solution s = load_solution(path);
+        if (s.exercise_sha256 != ex.brief.answer_key_sha256)
+            throw InputError(path, 0, "solution.exercise_sha256", "this solution belongs to another exercise");
+        p = s.prediction;
+        source = path;
+    }
+    const std::string key_path = args.key.empty() ? exercise_paths(args.dir).answer_key() : args.key;
+    const AnswerKey key = open_answer_key(ex.brief, key_path);
+    const Score sc = score_prediction(ex.brief, key, p, args.window_years);
+    write_luck(sc, args.dir + "/luck.csv", args.dir + "/luck.png", "Luck of the epoch: " + ex.brief.scenario_name);
+
+    out << std::fixed << std::setprecision(3);
+    out << "Answer key verified (SHA-256 matches the brief). Scoring " << source << ".\n";
+    out << "True position of " << sc.hidden_name << " at " << std::setprecision(2) << sc.epoch_year << std::setprecision(3) << ": λ = "
+        << sc.true_lon / deg << " deg, β = " << sc.true_lat / deg << " deg\n";
+    out << "Predicted: λ = " << sc.predicted_lon / deg << " deg, β = " << sc.predicted_lat / deg << " deg\n";
+    out << "Separation: " << sc.separation_arcmin << " arcmin; field radius " << sc.field_radius_deg * 60 << " arcmin: "
+        << (sc.hit ? "HIT" : "MISS") << "\n";
+    if (sc.mahalanobis) out << "Normalised error (Mahalanobis): " << *sc.mahalanobis << " sigma\n";
+    out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
+        << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "
+        << std::setprecision(3) << sc.closest_arcmin << " arcmin in " << std::setprecision(2) << sc.closest_year << "\n";
+    out << std::defaultfloat << "Wrote " << args.dir << "/luck.csv and " << args.dir << "/luck.png\n";
     return 0;
 }
 

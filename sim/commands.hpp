@@ -3,9 +3,12 @@
 #pragma once
 
 #include <cstdint>
+#include <optional>
 #include <ostream>
 #include <string>
 #include <vector>
+
+#include "sim/solve.hpp"
 
 namespace wayward {
 
@@ -26,5 +29,37 @@ struct NewArgs {
 };
 // Makes an exercise folder and prints its summary.
 int run_new(const NewArgs& args, std::ostream& out);
+
+struct ResidualsArgs {
+    std::string dir;
+    bool neglect_light_time = false;
+};
+// Fits the known-bodies model, writes residuals.csv and residuals.png into the exercise folder, prints RMS.
+int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& progress);
+
+struct SolveArgs {
+    std::string dir;
+    std::string distance = "free";  // free | fixed:A | gauss:A,SIGMA | spacing[:FRACTION]
+    bool circular = false;
+    bool coplanar = false;
+    std::optional<double> epoch_year;
+    int samples = 300;
+    int starts = 4;
+    unsigned threads = 0;
+    bool quiet = false;
+    bool neglect_light_time = false;
+};
+SolveOptions solve_options(const SolveArgs& args);  // parses the priors (InputError on bad values)
+int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress);
+
+struct ScoreArgs {
+    std::string dir;
+    std::string solution;             // default DIR/solution.toml
+    std::string key;                  // default DIR/answer-key/answer_key.toml
+    std::optional<double> lon_deg, lat_deg, epoch_year;  // a trainee's own prediction
+    std::string prediction_file;      // or a small TOML file with lon_deg, lat_deg, epoch_year
+    double window_years = 60.0;
+};
+int run_score(const ScoreArgs& args, std::ostream& out);
 
 }  // namespace wayward

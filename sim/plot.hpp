@@ -96,9 +96,10 @@ struct Bars {
     bool value_labels = true;  // print each value above its bar when every label fits its bar
 };
 
-// Ticks at multiples of a "nice" step (1, 2 or 5 times a power of ten) inside [lo, hi], following
-// Heckbert, "Nice numbers for graph labels", Graphics Gems (1990). Degenerate or non-finite input gives
-// a usable range (e.g. all-equal values are widened); magnitudes beyond 1e300 are clamped.
+// Ticks at multiples of a "nice" step (1, 2 or 5 times a power of ten) inside [lo, hi], after Heckbert,
+// "Nice numbers for graph labels", Graphics Gems (1990): of the nice steps near (hi - lo) / (target - 1),
+// the one giving the tick count nearest target_count. Degenerate or non-finite input gives a usable range
+// (all-equal values are widened by 5%); magnitudes beyond 1e300 are clamped.
 struct Ticks {
     double lo = 0.0, hi = 1.0;   // the range the ticks were chosen for (after sanitising)
     double step = 0.2;

@@ -28,6 +28,35 @@ int main(int argc, char** argv) {
     c_new->add_option("--key-out", nw.key_dir, "folder for the answer key (default OUT/answer-key)");
     c_new->add_flag("--force", nw.force, "overwrite an existing exercise");
 
+    ResidualsArgs res;
+    auto* c_res = app.add_subcommand("residuals", "fit the known planets only and write their O−C residuals (CSV, PNG)");
+    c_res->add_option("exercise", res.dir, "exercise folder")->required();
+    c_res->add_flag("--neglect-light-time", res.neglect_light_time, "leave light time out of the model");
+
+    SolveArgs sv;
+    auto* c_solve = app.add_subcommand("solve", "infer the hidden body's orbit and mass and predict its position at the search epoch");
+    c_solve->add_option("exercise", sv.dir, "exercise folder")->required();
+    c_solve->add_option("--distance", sv.distance, "distance prior: free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION]")->capture_default_str();
+    c_solve->add_flag("--circular", sv.circular, "fit a circular orbit");
+    c_solve->add_flag("--coplanar", sv.coplanar, "hold the orbit in the observer's plane (default: fit its tilt, with a weak prior)");
+    c_solve->add_option("--epoch", sv.epoch_year, "year of the prediction (default: the brief's search epoch)");
+    c_solve->add_option("--samples", sv.samples, "covariance samples for the ellipse check")->capture_default_str();
+    c_solve->add_option("--starts", sv.starts, "grid minima refined")->capture_default_str();
+    c_solve->add_option("--threads", sv.threads, "threads (0: all cores; results do not depend on it)")->capture_default_str();
+    c_solve->add_flag("--quiet", sv.quiet, "no progress output");
+    c_solve->add_flag("--neglect-light-time", sv.neglect_light_time, "leave light time out of the model");
+
+    ScoreArgs scr;
+    auto* c_score = app.add_subcommand("score", "check the answer key, then score a prediction: separation, hit, luck curve");
+    c_score->add_option("exercise", scr.dir, "exercise folder")->required();
+    c_score->add_option("--solution", scr.solution, "solution file (default EXERCISE/solution.toml)");
+    c_score->add_option("--key", scr.key, "answer key (default EXERCISE/answer-key/answer_key.toml)");
+    c_score->add_option("--lon", scr.lon_deg, "your predicted longitude (deg)");
+    c_score->add_option("--lat", scr.lat_deg, "your predicted latitude (deg)");
+    c_score->add_option("--epoch", scr.epoch_year, "the year of your prediction");
+    c_score->add_option("--prediction", scr.prediction_file, "a TOML file with lon_deg, lat_deg, epoch_year");
+    c_score->add_option("--window", scr.window_years, "luck-curve half-window (years)")->capture_default_str();
+
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {
@@ -37,6 +66,9 @@ int main(int argc, char** argv) {
     try {
         if (c_eph->parsed()) return run_ephemeris(eph, std::cout);
         if (c_new->parsed()) return run_new(nw, std::cout);
+        if (c_res->parsed()) return run_residuals(res, std::cout, std::cerr);
+        if (c_solve->parsed()) return run_solve(sv, std::cout, std::cerr);
+        if (c_score->parsed()) return run_score(scr, std::cout);
     } catch (const InputError& e) {
         std::cerr << "wayward: " << e.what() << "\n";
         return 2;
