@@ -71,7 +71,7 @@ int run_new(const NewArgs& args, std::ostream& out) {
     const Truth truth = generate(sc, args.seed, &run);
     const ObservationSet obs = observe(sc, truth, run.ephemeris, args.seed);
     const Brief brief = make_brief(sc, truth, args.seed);
-    write_exercise(paths, sc, truth, obs, brief, args.force);
+    write_exercise(paths, sc, truth, obs, brief, run.ephemeris, args.force);
 
     out << std::defaultfloat << std::setprecision(6);
     out << "Exercise written to " << paths.dir << " (answer key sealed in " << paths.key_dir << ")\n";
@@ -160,6 +160,10 @@ SolveOptions solve_options(const SolveArgs& a) {
     }
     o.circular = a.circular;
     o.coplanar = a.coplanar;
+    if (!(a.ecc_sigma > 0 && a.ecc_sigma < 1)) throw InputError("", 0, "--ecc-sigma", "must be in (0, 1)");
+    if (!(a.tilt_sigma_deg > 0 && a.tilt_sigma_deg < 90)) throw InputError("", 0, "--tilt-sigma", "must be in (0, 90) degrees");
+    o.eccentricity_prior_sigma = a.ecc_sigma;
+    o.inclination_prior_rad = a.tilt_sigma_deg * deg;
     o.epoch_year = a.epoch_year;
     if (a.samples < 20 || a.samples > 100000) throw InputError("", 0, "--samples", "must be in [20, 100000]");
     if (a.starts < 1 || a.starts > 64) throw InputError("", 0, "--starts", "must be in [1, 64]");

@@ -42,6 +42,8 @@ struct SolveArgs {
     std::string distance = "free";  // free | fixed:A | gauss:A,SIGMA | spacing[:FRACTION]
     bool circular = false;
     bool coplanar = false;
+    double ecc_sigma = 0.1;       // weak prior on e cos(varpi), e sin(varpi)
+    double tilt_sigma_deg = 3.0;  // weak prior on the tilt components
     std::optional<double> epoch_year;
     int samples = 300;
     int starts = 4;

@@ -60,8 +60,9 @@ Brief make_brief(const Scenario& sc, const Truth& truth, std::uint64_t seed) {
         const double g_mass = normal(rng), g_m = normal(rng), g_a = normal(rng), g_e = normal(rng);
         p.mass = d.mass * (1.0 + plan.brief_mass_error * g_mass);
         p.elements = d.elements;
-        if (!d.observer) {
-            // The observer's own orbit is known well; the others only approximately, from earlier work.
+        if (p.observed) {
+            // The observer's own orbit and those of planets not in the record are given as they are (the team's
+            // earlier work settled them); the observed planets' orbits only approximately, to be fitted.
             p.elements.mean_anomaly = wrap_two_pi(d.elements.mean_anomaly + err * g_m);
             p.elements.semi_major_axis = d.elements.semi_major_axis * (1.0 + 0.1 * err * g_a);
             p.elements.eccentricity = std::abs(d.elements.eccentricity + 0.1 * err * g_e);
@@ -156,7 +157,7 @@ std::string true_positions_csv(const ObservationSet& obs, double epoch0_year) {
     for (std::size_t k = 0; k < obs.records.size(); ++k) {
         const Observation& o = obs.records[k];
         const ObservationTruth& t = obs.truth[k];
-        s += fmt("%.6f", o.time_days) + "," + fmt("%.6f", decimal_year(epoch0_year, o.time_days)) + "," + o.target + "," +
+        s += fmt("%.8f", o.time_days) + "," + fmt("%.6f", decimal_year(epoch0_year, o.time_days)) + "," + o.target + "," +
              fmt("%.12f", t.true_lon_deg) + "," + fmt("%.12f", t.true_lat_deg) + "," + fmt("%.6f", t.elongation_deg) + "," +
              (t.outlier ? "1" : "0") + "," + fmt("%.6f", t.systematic_lon_arcsec) + "," + fmt("%.6f", t.systematic_lat_arcsec) + "\n";
     }
@@ -195,7 +196,7 @@ std::string answer_key_text(const Scenario& sc, const Truth& truth, const std::s
 std::string format_observations_csv(const std::vector<Observation>& obs, double epoch0_year) {
     std::string s = "time_days,year,target,lon_deg,lat_deg,sigma_lon_arcsec,sigma_lat_arcsec,era\n";
     for (const Observation& o : obs) {
-        s += fmt("%.6f", o.time_days) + "," + fmt("%.6f", decimal_year(epoch0_year, o.time_days)) + "," + o.target + "," +
+        s += fmt("%.8f", o.time_days) + "," + fmt("%.6f", decimal_year(epoch0_year, o.time_days)) + "," + o.target + "," +
              fmt("%.9f", o.lon_deg) + "," + fmt("%.9f", o.lat_deg) + "," +
              (o.sigma_lon_arcsec ? fmt("%.6g", *o.sigma_lon_arcsec) : "") + "," +
              (o.sigma_lat_arcsec ? fmt("%.6g", *o.sigma_lat_arcsec) : "") + "," + o.era + "\n";
@@ -203,8 +204,79 @@ std::string format_observations_csv(const std::vector<Observation>& obs, double 
     return s;
 }
 
+std::vector<ObserverFix> observer_track_for(const std::vector<Observation>& obs, const Ephemeris& eph, std::size_t observer) {
+    std::vector<double> times;
+    for (const Observation& o : obs) {
+        // The recorded time (6 decimals), so that the track matches the log exactly as a reader parses it.
+        times.push_back(std::strtod(fmt("%.8f", o.time_days).c_str(), nullptr));
+    }
+    std::sort(times.begin(), times.end());
+    times.erase(std::unique(times.begin(), times.end()), times.end());
+    std::vector<ObserverFix> out;
+    for (double t : times) out.push_back({t, eph.position(observer, t) - eph.position(0, t)});
+    return out;
+}
+
+std::string format_observer_csv(const std::vector<ObserverFix>& track) {
+    std::string s = "time_days,x_au,y_au,z_au\n";
+    for (const ObserverFix& f : track)
+        s += fmt("%.6f", f.time_days) + "," + fmt("%.13f", f.position.x()) + "," + fmt("%.13f", f.position.y()) + "," +
+             fmt("%.13f", f.position.z()) + "\n";
+    return s;
+}
+
+std::vector<ObserverFix> parse_observer_csv(const std::string& text, const std::string& file) {
+    std::vector<ObserverFix> out;
+    std::istringstream in(text);
+    std::string line;
+    long row = 0;
+    while (std::getline(in, line)) {
+        ++row;
+        if (!line.empty() && line.back() == '\r') line.pop_back();
+        if (row == 1) {
+            if (line != "time_days,x_au,y_au,z_au") throw InputError(file, 1, "header", "expected the header \"time_days,x_au,y_au,z_au\"");
+            continue;
+        }
+        if (line.empty()) continue;
+        double v[4];
+        const char* p = line.c_str();
+        for (int c = 0; c < 4; ++c) {
+            char* end = nullptr;
+            v[c] = std::strtod(p, &end);
+            static const char* names[] = {"time_days", "x_au", "y_au", "z_au"};
+            if (end == p || !std::isfinite(v[c]) || (c < 3 ? *end != ',' : *end != '\0'))
+                throw InputError(file, row, names[c], "is not a finite number");
+            p = end + 1;
+        }
+        if (!out.empty() && !(v[0] > out.back().time_days)) throw InputError(file, row, "time_days", "times must increase");
+        out.push_back({v[0], Vec3(v[1], v[2], v[3])});
+    }
+    return out;
+}
+
+ExerciseInMemory exercise_in_memory(const Scenario& sc, const Truth& truth, const ObservationSet& obs, const Brief& brief,
+                                    const Ephemeris& eph) {
+    ExerciseInMemory m;
+    m.exercise.dir = "(in memory)";
+    m.exercise.brief = brief;
+    m.exercise.brief.file = "(in memory)";
+    m.exercise.brief.answer_key_sha256 = sha256_hex(answer_key_text(sc, truth, sha256_hex(true_positions_csv(obs, sc.epoch0_year))));
+    m.exercise.observations = obs.records;
+    for (Observation& o : m.exercise.observations) o.time_days = std::strtod(fmt("%.8f", o.time_days).c_str(), nullptr);
+    m.exercise.observer_track = observer_track_for(obs.records, eph, truth.system.observer_index());
+    m.key.file = "(in memory)";
+    m.key.scenario_name = sc.name;
+    m.key.seed = truth.seed;
+    m.key.star_name = truth.system.bodies[0].name;
+    m.key.star_mass = truth.star_mass;
+    m.key.bodies = truth.bodies;
+    for (const DrawnBody& d : truth.bodies)
+        if (d.role == Role::hidden) m.key.hidden_name = d.name;
+    return m;
+}
+
 void write_exercise(const ExercisePaths& paths, const Scenario& sc, const Truth& truth, const ObservationSet& obs,
-                    const Brief& brief_in, bool force) {
+                    const Brief& brief_in, const Ephemeris& eph, bool force) {
     std::error_code ec;
     if (fs::exists(paths.brief()) && !force)
         throw InputError(paths.dir, 0, "--out", "an exercise already exists here; use --force to overwrite it");
@@ -220,6 +292,7 @@ void write_exercise(const ExercisePaths& paths, const Scenario& sc, const Truth&
     const std::string key = answer_key_text(sc, truth, sha256_hex(positions));
     write_file_atomic(paths.answer_key(), key);
     write_file_atomic(paths.observations(), format_observations_csv(obs.records, sc.epoch0_year));
+    write_file_atomic(paths.observer_track(), format_observer_csv(observer_track_for(obs.records, eph, truth.system.observer_index())));
     Brief brief = brief_in;
     brief.answer_key_sha256 = sha256_hex(key);
     write_file_atomic(paths.brief(), brief_text(brief));  // last: its presence marks a complete exercise
@@ -367,6 +440,7 @@ Exercise load_exercise(const std::string& dir) {
     ex.dir = dir;
     ex.brief = load_brief(p.brief());
     ex.observations = parse_observations_csv(detail::read_text_file(p.observations()), p.observations());
+    ex.observer_track = parse_observer_csv(detail::read_text_file(p.observer_track()), p.observer_track());
     // Every target must be a known planet of the brief, and not the observer.
     for (std::size_t k = 0; k < ex.observations.size(); ++k) {
         const std::string& t = ex.observations[k].target;

@@ -60,10 +60,19 @@ struct AnswerKey {
     std::optional<std::size_t> hidden_index() const;  // index in system()
 };
 
+// The team's own ephemeris of its observer planet: heliocentric positions (au, reference frame) at the
+// observation times. A team knows its own planet's orbit from its own observations of the star, far better
+// than any outer planet's; the file gives it as that knowledge would (it includes every perturbation).
+struct ObserverFix {
+    double time_days = 0.0;
+    Vec3 position{Vec3::Zero()};
+};
+
 struct Exercise {
     std::string dir;
     Brief brief;
     std::vector<Observation> observations;
+    std::vector<ObserverFix> observer_track;  // sorted by time, one per distinct observation time
 };
 
 struct ExercisePaths {
@@ -71,6 +80,7 @@ struct ExercisePaths {
     std::string key_dir;  // default dir + "/answer-key"
     std::string brief() const { return dir + "/brief.toml"; }
     std::string observations() const { return dir + "/observations.csv"; }
+    std::string observer_track() const { return dir + "/observer.csv"; }
     std::string answer_key() const { return key_dir + "/answer_key.toml"; }
     std::string true_positions() const { return key_dir + "/true_positions.csv"; }
 };
@@ -81,15 +91,28 @@ Brief make_brief(const Scenario& sc, const Truth& truth, std::uint64_t seed);
 
 // Writes the whole folder. Refuses (InputError) to overwrite an existing exercise unless `force`.
 void write_exercise(const ExercisePaths& paths, const Scenario& sc, const Truth& truth, const ObservationSet& obs,
-                    const Brief& brief, bool force);
+                    const Brief& brief, const Ephemeris& eph, bool force);
 
 std::string format_observations_csv(const std::vector<Observation>& obs, double epoch0_year);
 std::vector<Observation> parse_observations_csv(const std::string& text, const std::string& file);
+// The observer's positions at the (recorded, rounded) observation times, from the truth ephemeris.
+std::vector<ObserverFix> observer_track_for(const std::vector<Observation>& obs, const Ephemeris& eph, std::size_t observer);
+std::string format_observer_csv(const std::vector<ObserverFix>& track);
+std::vector<ObserverFix> parse_observer_csv(const std::string& text, const std::string& file);
 Brief load_brief(const std::string& path);
 // Reads brief and observations only: the answer key stays sealed.
 Exercise load_exercise(const std::string& dir);
 // Opens the answer key after checking its SHA-256 against the brief (InputError if it was changed).
 AnswerKey open_answer_key(const Brief& brief, const std::string& key_path);
+
+// The same exercise held in memory, as `new` would write it (brief with the key's digest, observations,
+// answer key): for campaigns, budgets and tests that need no files.
+struct ExerciseInMemory {
+    Exercise exercise;
+    AnswerKey key;
+};
+ExerciseInMemory exercise_in_memory(const Scenario& sc, const Truth& truth, const ObservationSet& obs, const Brief& brief,
+                                    const Ephemeris& eph);
 
 // The team's model: star + known planets from the brief (no hidden body).
 System known_model_system(const Brief& brief);

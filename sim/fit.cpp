@@ -84,7 +84,25 @@ ModelSetup make_setup(const Exercise& ex, const ModelOptions& options) {
     if (inner.outcome != IntegrationOutcome::ok)
         throw InputError(ex.brief.file, 0, "planet", "the known model cannot be integrated: " + to_string(inner.outcome));
     s.inner = inner.ephemeris;
-    for (const FitObservation& f : s.obs) s.observer_helio.push_back(s.observer_helio_at(f.time_days));
+    // The observer's position at each observation: from the team's own ephemeris of it where the exercise
+    // has one (matched by recorded time), else from the known model.
+    for (const FitObservation& f : s.obs) {
+        const auto it = std::lower_bound(ex.observer_track.begin(), ex.observer_track.end(), f.time_days,
+                                         [](const ObserverFix& a, double t) { return a.time_days < t; });
+        if (it != ex.observer_track.end() && std::abs(it->time_days - f.time_days) < 1e-9) s.observer_helio.push_back(it->position);
+        else if (!ex.observer_track.empty())
+            throw InputError(ex.dir + "/observer.csv", 0, "time_days", "has no row for the observation at day " + std::to_string(f.time_days));
+        else s.observer_helio.push_back(s.observer_helio_at(f.time_days));
+    }
+    // <d d^T> of the observer's heliocentric position, averaged over the span at 4096 evenly spaced times.
+    const int samples = 4096;
+    for (int k = 0; k < samples; ++k) {
+        const double t = s.inner.t_begin() + (s.inner.t_end() - s.inner.t_begin()) * (k + 0.5) / samples;
+        const Vec3 d = s.observer_helio_at(t);
+        s.pair_quadrupole.q += d * d.transpose() / samples;
+    }
+    const double gm_s = s.known.gm[0], gm_o = s.known.gm[s.observer];
+    s.pair_quadrupole.gm_reduced = gm_s * gm_o / (gm_s + gm_o);
     return s;
 }
 
@@ -146,6 +164,7 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     for (std::size_t i = 0; i < bary.size(); ++i) sys.set(i, bary[i]);
     IntegratorOptions io;
     io.rel_tol = setup.options.rel_tol;
+    io.central_quadrupole = setup.pair_quadrupole;
     const double t0 = t_begin.value_or(setup.t_begin);
     IntegrationResult r = integrate(sys, t0, std::max(t_end, t0), io);
     if (r.outcome != IntegrationOutcome::ok) {

@@ -69,6 +69,7 @@ struct ModelSetup {
     std::vector<FitObservation> obs;
     std::vector<Vec3> observer_helio;    // observer heliocentric position at each observation time
     Ephemeris inner;                     // full N-body known model (for the observer's track at other times)
+    CentralQuadrupole pair_quadrupole;   // time-averaged quadrupole of the star-observer pair
     double t_begin = 0.0, t_end = 0.0;   // span the model must cover
     ModelOptions options;
     bool weights_estimated() const;      // some era has no recorded sigma

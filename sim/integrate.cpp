@@ -53,19 +53,42 @@ double shortest_period(const System& s) {
 
 namespace {
 
+// Acceleration of every other body by the averaged quadrupole of body 0 (see CentralQuadrupole), and the
+// reaction on body 0: a = (3 G mu / 2) [2 Q rho / rho^5 - 5 (rho.Q.rho) rho / rho^7 + tr(Q) rho / rho^5],
+// rho from body 0 to the body (the gradient of the quadrupole term of the multipole expansion).
+void add_quadrupole(const CentralQuadrupole& cq, const std::vector<double>& gm, const double* pos, std::size_t stride,
+                    double* acc, std::size_t acc_stride) {
+    const std::size_t n = gm.size();
+    const double trace = cq.q.trace();
+    const double total = gm[0];
+    for (std::size_t i = 1; i < n; ++i) {
+        const Vec3 rho(pos[stride * i] - pos[0], pos[stride * i + 1] - pos[1], pos[stride * i + 2] - pos[2]);
+        const double r2 = rho.squaredNorm(), r = std::sqrt(r2), r5 = r2 * r2 * r;
+        const Vec3 qr = cq.q * rho;
+        const Vec3 a = 1.5 * cq.gm_reduced * ((2.0 * qr + trace * rho) / r5 - 5.0 * rho.dot(qr) * rho / (r5 * r2));
+        for (int c = 0; c < 3; ++c) {
+            acc[acc_stride * i + static_cast<std::size_t>(c)] += a[c];
+            acc[static_cast<std::size_t>(c)] -= gm[i] / total * a[c];
+        }
+    }
+}
+
 struct Rhs {
     const std::vector<double>* gm;
     std::size_t* calls;
+    const CentralQuadrupole* quad = nullptr;
     void operator()(const StateType& x, StateType& dxdt, double /*t*/) const {
         ++*calls;
         nbody_derivative(gm->size(), gm->data(), x.data(), dxdt.data());
+        if (quad) add_quadrupole(*quad, *gm, x.data(), 6, dxdt.data() + 3, 6);
     }
 };
 
 struct Recorder {
     std::size_t n;
     const std::vector<double>* gm;
-    std::vector<double> times, states, accels;
+    const CentralQuadrupole* quad = nullptr;
+    std::vector<double> times = {}, states = {}, accels = {};
     void record(double t, const StateType& x) {
         times.push_back(t);
         states.insert(states.end(), x.begin(), x.end());
@@ -73,6 +96,7 @@ struct Recorder {
         for (std::size_t i = 0; i < n; ++i)
             for (std::size_t k = 0; k < 3; ++k) pos[3 * i + k] = x[6 * i + k];
         nbody_accelerations(n, gm->data(), pos.data(), acc.data());
+        if (quad) add_quadrupole(*quad, *gm, pos.data(), 3, acc.data(), 3);
         accels.insert(accels.end(), acc.begin(), acc.end());
     }
 };
@@ -138,15 +162,16 @@ IntegrationResult integrate(const System& s, double t_begin, double t_end, const
     eph.gm = s.gm;
     const std::size_t n = s.size();
     const double max_step = shortest_period(s) * options.max_step_fraction;
-    Rhs rhs{&eph.gm, &result.rhs_calls};
+    const CentralQuadrupole* quad = options.central_quadrupole ? &*options.central_quadrupole : nullptr;
+    Rhs rhs{&eph.gm, &result.rhs_calls, quad};
     const StateType x0 = s.state;
     if (!finite_state(x0)) {
         result.outcome = IntegrationOutcome::non_finite_state;
         return result;
     }
 
-    Recorder back{n, &eph.gm, {}, {}, {}};
-    Recorder fwd{n, &eph.gm, {}, {}, {}};
+    Recorder back{n, &eph.gm, quad};
+    Recorder fwd{n, &eph.gm, quad};
     const double t_lo = std::min(t_begin, s.time), t_hi = std::max(t_end, s.time);
     IntegrationOutcome out = IntegrationOutcome::ok;
     if (t_lo < s.time) out = drive_method(options.method, rhs, x0, s.time, t_lo, max_step, options, back, result);

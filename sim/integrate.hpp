@@ -7,12 +7,22 @@
 #pragma once
 
 #include <cstddef>
+#include <optional>
 #include <string>
 #include <vector>
 
 #include "sim/system.hpp"
 
 namespace wayward {
+
+// The time-averaged quadrupole of an inner pair treated as one central body (body 0): Q = <d d^T> of the
+// pair's separation d, and the pair's reduced GM (G M m / (M + m)). Used by the fitting model, which
+// integrates the outer bodies about the star-observer pair; the monopole alone would leave about a
+// milliarcsecond of error.
+struct CentralQuadrupole {
+    Eigen::Matrix3d q = Eigen::Matrix3d::Zero();  // au^2
+    double gm_reduced = 0.0;                      // au^3/d^2
+};
 
 struct IntegratorOptions {
     std::string method = "rkf78";
@@ -21,6 +31,7 @@ struct IntegratorOptions {
     // Largest step as a fraction of the shortest orbital period in the system (bounds the Hermite error).
     double max_step_fraction = 1.0 / 200.0;
     std::size_t max_steps = 20'000'000;
+    std::optional<CentralQuadrupole> central_quadrupole;
 };
 
 struct IntegratorMethod {

@@ -16,11 +16,11 @@ namespace wayward {
 
 // A number in a scenario: fixed, or drawn from a distribution.
 struct Param {
-    enum class Kind { fixed, uniform, log_uniform, normal };
+    enum class Kind { fixed, uniform, log_uniform, normal, rayleigh };
     Kind kind = Kind::fixed;
     double value = 0.0;          // fixed value
     double lo = 0.0, hi = 0.0;   // uniform / log-uniform range, or bounds of a normal
-    double mean = 0.0, sd = 0.0; // normal
+    double mean = 0.0, sd = 0.0; // normal; rayleigh uses sd as its scale
     bool bounded = false;        // normal with bounds (redrawn until inside)
     long line = 0;               // source line, for messages
 

@@ -17,6 +17,14 @@ double Param::draw(Rng& rng) const {
         case Kind::fixed: return value;
         case Kind::uniform: return uniform(rng, lo, hi);
         case Kind::log_uniform: return std::exp(uniform(rng, std::log(lo), std::log(hi)));
+        case Kind::rayleigh:
+            // Rayleigh(sd): the length of a 2-D Gaussian vector, the usual model for small eccentricities and
+            // inclinations (common practice); drawn as sd * sqrt(-2 ln U).
+            for (int k = 0; k < 10000; ++k) {
+                const double v = sd * std::sqrt(-2.0 * std::log(1.0 - uniform01(rng)));
+                if (!bounded || (v >= lo && v <= hi)) return v;
+            }
+            return bounded ? lo : 0.0;
         case Kind::normal:
             for (int k = 0; k < 10000; ++k) {
                 const double v = normal(rng, mean, sd);
@@ -31,13 +39,15 @@ double Param::min_value() const {
     switch (kind) {
         case Kind::fixed: return value;
         case Kind::normal: return bounded ? lo : -std::numeric_limits<double>::infinity();
+        case Kind::rayleigh: return bounded ? lo : 0.0;
         default: return lo;
     }
 }
 double Param::max_value() const {
     switch (kind) {
         case Kind::fixed: return value;
-        case Kind::normal: return bounded ? hi : std::numeric_limits<double>::infinity();
+        case Kind::normal:
+        case Kind::rayleigh: return bounded ? hi : std::numeric_limits<double>::infinity();
         default: return hi;
     }
 }
@@ -45,7 +55,7 @@ double Param::max_value() const {
 namespace {
 
 // A parameter: a number, or a table { uniform = [lo, hi] } | { log_uniform = [lo, hi] } |
-// { normal = [mean, sd], bounds = [lo, hi] }.
+// { normal = [mean, sd], bounds = [lo, hi] } | { rayleigh = sd, bounds = [lo, hi] }.
 std::optional<Param> read_param(TableReader& r, const std::string& key) {
     const toml::node* n = r.node(key);
     if (!n) return std::nullopt;
@@ -64,8 +74,9 @@ std::optional<Param> read_param(TableReader& r, const std::string& key) {
         return v;
     };
     const auto uni = pair("uniform"), logu = pair("log_uniform"), nor = pair("normal"), bounds = pair("bounds");
-    const int kinds = int(uni.has_value()) + int(logu.has_value()) + int(nor.has_value());
-    if (kinds != 1) r.fail(key, "a distribution needs exactly one of uniform, log_uniform or normal");
+    const auto ray = d.number("rayleigh");
+    const int kinds = int(uni.has_value()) + int(logu.has_value()) + int(nor.has_value()) + int(ray.has_value());
+    if (kinds != 1) r.fail(key, "a distribution needs exactly one of uniform, log_uniform, normal or rayleigh");
     if (uni) {
         p.kind = Param::Kind::uniform;
         p.lo = (*uni)[0]; p.hi = (*uni)[1];
@@ -75,17 +86,23 @@ std::optional<Param> read_param(TableReader& r, const std::string& key) {
         p.lo = (*logu)[0]; p.hi = (*logu)[1];
         if (!(p.lo > 0.0)) d.fail("log_uniform", "both ends must be positive");
         if (!(p.hi >= p.lo)) d.fail("log_uniform", "the upper end must not be below the lower end");
+    } else if (ray) {
+        p.kind = Param::Kind::rayleigh;
+        p.sd = *ray;
+        if (!(p.sd > 0.0)) d.fail("rayleigh", "the scale must be positive");
     } else {
         p.kind = Param::Kind::normal;
         p.mean = (*nor)[0]; p.sd = (*nor)[1];
         if (!(p.sd >= 0.0)) d.fail("normal", "the standard deviation must not be negative");
     }
     if (bounds) {
-        if (p.kind != Param::Kind::normal) d.fail("bounds", "bounds apply to a normal distribution only");
+        if (p.kind != Param::Kind::normal && p.kind != Param::Kind::rayleigh)
+            d.fail("bounds", "bounds apply to normal and rayleigh distributions only");
         p.bounded = true;
         p.lo = (*bounds)[0]; p.hi = (*bounds)[1];
         if (!(p.hi >= p.lo)) d.fail("bounds", "the upper bound must not be below the lower bound");
-        if (p.mean < p.lo - 5 * p.sd || p.mean > p.hi + 5 * p.sd) d.fail("bounds", "the bounds leave almost no probability");
+        if (p.kind == Param::Kind::normal && (p.mean < p.lo - 5 * p.sd || p.mean > p.hi + 5 * p.sd))
+            d.fail("bounds", "the bounds leave almost no probability");
     }
     d.finish();
     return p;

@@ -4,6 +4,8 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <cstdio>
+#include <cstdlib>
 #include <sstream>
 
 #include <toml++/toml.h>
@@ -24,7 +26,8 @@ std::string SolveOptions::describe() const {
         case DistancePrior::gaussian: s << "distance " << distance_au << " +- " << distance_sigma_au << " au"; break;
         case DistancePrior::spacing: s << "distance from the spacing rule (+- " << spacing_sigma_fraction * 100 << "%)"; break;
     }
-    s << (circular ? ", circular orbit" : ", eccentric orbit") << (coplanar ? ", coplanar" : ", inclined");
+    s << (circular ? ", circular orbit" : ", eccentric orbit (prior sigma " + std::to_string(eccentricity_prior_sigma).substr(0, 5) + " on e)")
+      << (coplanar ? ", coplanar" : ", inclined (prior sigma " + std::to_string(inclination_prior_rad / deg).substr(0, 4) + " deg on the tilt)");
     return s.str();
 }
 
@@ -326,40 +329,45 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     }
     std::sort(order.begin(), order.end(), [&](std::size_t x, std::size_t y) { return cells[x].chi2 < cells[y].chi2; });
     if (order.empty()) throw std::runtime_error("the grid search found no hidden body that improves the fit");
+    if (std::getenv("WAYWARD_GRID_TRACE"))
+        for (std::size_t k = 0; k < std::min<std::size_t>(order.size(), 12); ++k)
+            std::fprintf(stderr, "grid a %.3f lon_ref %.1f alpha %.3g chi2 %.6g\n", grid_a[order[k] / static_cast<std::size_t>(nl)],
+                         360.0 * static_cast<double>(order[k] % static_cast<std::size_t>(nl)) / nl, cells[order[k]].alpha, cells[order[k]].chi2);
     if (order.size() > static_cast<std::size_t>(o.starts)) order.resize(static_cast<std::size_t>(o.starts));
 
-    // ---- Levenberg-Marquardt from each start, by variable projection ----
-    // The planets' corrections enter almost linearly, through the Jacobian Jp of the known fit: for given
-    // hidden-body parameters theta they are eliminated by linear least squares, and LM runs on theta alone
-    // against the projected residual (I - Q Q^T) r(theta) (variable projection, Golub & Pereyra 1973). This
-    // removes the near-degenerate directions in which planet corrections and the hidden body trade off, which
-    // otherwise make the joint problem crawl. The best minimum is then polished with all parameters free.
+    // ---- Levenberg-Marquardt from each start, with the planets' corrections eliminated ----
+    // The planets' corrections enter almost linearly, through the Jacobian Jp of the known fit. For given
+    // hidden-body parameters theta they are solved by Gauss-Newton steps, dp(theta) = -Jp^+ r(p, theta), and
+    // LM runs on theta alone against the true residual r(p0 + dp(theta), theta) (in the spirit of variable
+    // projection, Golub & Pereyra 1973). This removes the near-degenerate directions in which planet
+    // corrections and the hidden body trade off, which otherwise make the joint problem crawl; evaluating the
+    // true residual (not its linearised projection) keeps every chi2 honest when the corrections are large.
+    // The best minimum is then polished with all parameters free.
     const Eigen::Index n_obs = static_cast<Eigen::Index>(2 * setup.obs.size());
     const Eigen::ColPivHouseholderQR<Eigen::MatrixXd> jp_qr(Jp);
-    const Eigen::Index rank = jp_qr.rank();
-    const Eigen::MatrixXd Q = jp_qr.householderQ() * Eigen::MatrixXd::Identity(Jp.rows(), rank);
     const auto n_theta = static_cast<Eigen::Index>(prob.layout.names.size());
     const auto n_planet = static_cast<Eigen::Index>(prob.layout.planets);
-    auto full_x = [&](const Eigen::VectorXd& theta) {
-        Eigen::VectorXd x(n_planet + n_theta);
+    // Full parameter vector for theta: the planets' corrections solved for it.
+    auto with_planets = [&](const Eigen::VectorXd& theta, Eigen::VectorXd& x) {
+        x.resize(n_planet + n_theta);
         x.head(n_planet) = x_planets;
         x.tail(n_theta) = theta;
-        return x;
+        // Two Gauss-Newton steps with the fixed Jacobian: the second removes most of what the first leaves
+        // when a massive hidden body needs large corrections.
+        for (int step = 0; step < 2; ++step) {
+            Eigen::VectorXd r;
+            if (!prob.evaluate(x, r)) return false;
+            x.head(n_planet) += jp_qr.solve(Eigen::VectorXd(-r.head(n_obs)));
+        }
+        return true;
     };
     LeastSquaresProblem reduced;
     reduced.parameters = static_cast<std::size_t>(n_theta);
     reduced.residuals = prob.residual_count();
     reduced.step = prob.steps().tail(n_theta);
     reduced.evaluate = [&](const Eigen::VectorXd& theta, Eigen::VectorXd& r) {
-        if (!prob.evaluate(full_x(theta), r)) return false;
-        r.head(n_obs) -= Q * (Q.transpose() * r.head(n_obs));
-        return true;
-    };
-    // The planets' corrections that go with theta (the eliminated linear part).
-    auto with_planets = [&](const Eigen::VectorXd& theta) {
-        Eigen::VectorXd x = full_x(theta), r;
-        if (prob.evaluate(x, r)) x.head(n_planet) += jp_qr.solve(Eigen::VectorXd(-r.head(n_obs)));
-        return x;
+        Eigen::VectorXd x;
+        return with_planets(theta, x) && prob.evaluate(x, r);
     };
     std::vector<LeastSquaresResult> fits(order.size());
     std::atomic<std::size_t> fitted{0};
@@ -370,13 +378,41 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
         if (prob.layout.i_a >= 0) theta0[prob.layout.i_a - n_planet] = std::log(grid_a[c / static_cast<std::size_t>(nl)]);
         theta0[prob.layout.i_lon - n_planet] = two_pi * static_cast<double>(c % static_cast<std::size_t>(nl)) / nl;
         LeastSquaresResult r = levenberg_marquardt(reduced, theta0, 40, cancelled);
-        if (r.evaluations > 0) r.x = with_planets(r.x);
+        Eigen::VectorXd x;
+        if (r.evaluations > 0 && with_planets(r.x, x)) r.x = x; else r.evaluations = 0;
         fits[s] = r;
         report("fitting from " + std::to_string(order.size()) + " starts",
                0.4 + 0.35 * static_cast<double>(++fitted) / static_cast<double>(order.size()));
     });
     if (cancelled()) throw std::runtime_error("cancelled");
 
+    std::size_t best_start = fits.size();
+    for (std::size_t s = 0; s < fits.size(); ++s)
+        if (fits[s].evaluations > 0 && std::isfinite(fits[s].chi2) && (best_start == fits.size() || fits[s].chi2 < fits[best_start].chi2))
+            best_start = s;
+    if (best_start == fits.size()) throw std::runtime_error("no fit from any start could be evaluated");
+
+    // ---- polish the best with the full Jacobian, re-estimating weights with the complete model ----
+    report("polishing the best minimum", 0.78);
+    const LeastSquaresProblem full = as_lsq(prob, nullptr);
+    LeastSquaresResult best = levenberg_marquardt(full, fits[best_start].x, 8, cancelled);
+    for (int round = 0; round < 3; ++round) {
+        const ModelRun run = run_model(setup, prob.state(best.x), setup.t_end);
+        if (!update_weights(setup, residuals_arcsec(setup, run))) break;
+        best = levenberg_marquardt(full, best.x, 8, cancelled);
+    }
+    // Every minimum's chi2 with the final weights, so that they compare fairly.
+    for (std::size_t s = 0; s < fits.size(); ++s) {
+        if (fits[s].evaluations == 0) continue;
+        if (s == best_start) {
+            fits[s].x = best.x;
+            fits[s].chi2 = best.chi2;
+            fits[s].converged = best.converged || fits[s].converged;
+            continue;
+        }
+        Eigen::VectorXd r;
+        fits[s].chi2 = prob.evaluate(fits[s].x, r) ? r.squaredNorm() : INFINITY;
+    }
     for (std::size_t s = 0; s < fits.size(); ++s) {
         if (fits[s].evaluations == 0 || !std::isfinite(fits[s].chi2)) continue;
         Minimum m;
@@ -398,24 +434,8 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
         }
         if (!duplicate) sol.minima.push_back(m);
     }
-    if (sol.minima.empty()) throw std::runtime_error("no fit from any start converged");
-    std::size_t best_start = 0;
-    for (std::size_t s = 1; s < fits.size(); ++s)
-        if (fits[s].chi2 < fits[best_start].chi2) best_start = s;
-
-    // ---- polish the best with the full Jacobian, re-estimating weights with the complete model ----
-    report("polishing the best minimum", 0.78);
-    const LeastSquaresProblem full = as_lsq(prob, nullptr);
-    LeastSquaresResult best = levenberg_marquardt(full, fits[best_start].x, 6, cancelled);
-    for (int round = 0; round < 3; ++round) {
-        const ModelRun run = run_model(setup, prob.state(best.x), setup.t_end);
-        if (!update_weights(setup, residuals_arcsec(setup, run))) break;
-        best = levenberg_marquardt(full, best.x, 6, cancelled);
-    }
     std::sort(sol.minima.begin(), sol.minima.end(), [](const Minimum& a, const Minimum& b) { return a.chi2 < b.chi2; });
     sol.best = prob.hidden(best.x);
-    sol.minima.front().orbit = sol.best;
-    sol.minima.front().chi2 = best.chi2;
     sol.chi2 = best.chi2;
     std::size_t kept = 0;
     for (const FitObservation& f : setup.obs) kept += f.rejected ? 0 : 1;

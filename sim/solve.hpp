@@ -33,7 +33,7 @@ struct SolveOptions {
     bool circular = false;
     bool coplanar = false;                 // true: the orbit lies in the observer's plane
     double eccentricity_prior_sigma = 0.1; // weak Gaussian prior on e cos(varpi), e sin(varpi) when not circular
-    double inclination_prior_rad = 0.05;   // weak Gaussian prior on the tilt components when not coplanar
+    double inclination_prior_rad = 3.0 * 0.017453292519943295;  // weak Gaussian prior on the tilt components
     int grid_distances = 10;
     int grid_longitudes = 16;
     int starts = 4;                        // distinct grid minima refined by Levenberg-Marquardt

@@ -39,6 +39,8 @@ int main(int argc, char** argv) {
     c_solve->add_option("--distance", sv.distance, "distance prior: free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION]")->capture_default_str();
     c_solve->add_flag("--circular", sv.circular, "fit a circular orbit");
     c_solve->add_flag("--coplanar", sv.coplanar, "hold the orbit in the observer's plane (default: fit its tilt, with a weak prior)");
+    c_solve->add_option("--ecc-sigma", sv.ecc_sigma, "sigma of the Gaussian prior on e cos(varpi) and e sin(varpi)")->capture_default_str();
+    c_solve->add_option("--tilt-sigma", sv.tilt_sigma_deg, "sigma (deg) of the Gaussian prior on the orbit's tilt components")->capture_default_str();
     c_solve->add_option("--epoch", sv.epoch_year, "year of the prediction (default: the brief's search epoch)");
     c_solve->add_option("--samples", sv.samples, "covariance samples for the ellipse check")->capture_default_str();
     c_solve->add_option("--starts", sv.starts, "grid minima refined")->capture_default_str();
