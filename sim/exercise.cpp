@@ -220,7 +220,7 @@ std::vector<ObserverFix> observer_track_for(const std::vector<Observation>& obs,
 std::string format_observer_csv(const std::vector<ObserverFix>& track) {
     std::string s = "time_days,x_au,y_au,z_au\n";
     for (const ObserverFix& f : track)
-        s += fmt("%.6f", f.time_days) + "," + fmt("%.13f", f.position.x()) + "," + fmt("%.13f", f.position.y()) + "," +
+        s += fmt("%.8f", f.time_days) + "," + fmt("%.13f", f.position.x()) + "," + fmt("%.13f", f.position.y()) + "," +
              fmt("%.13f", f.position.z()) + "\n";
     return s;
 }

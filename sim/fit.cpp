@@ -426,9 +426,30 @@ bool update_weights(ModelSetup& setup, const std::vector<std::array<double, 2>>&
                     f.sigma_lat_arcsec = sigma[1];
                 }
         }
+        // Where the model is still far from the data (the known-bodies fit of a strongly perturbed planet), the
+        // deviations from the local lines carry signal as well as noise; the clip then scales with their robust
+        // spread per planet and era (in units of sigma, never below 1), so only isolated points are set aside.
+        std::map<std::pair<std::size_t, std::size_t>, std::array<double, 2>> spread;
+        {
+            std::map<std::pair<std::size_t, std::size_t>, std::array<std::vector<double>, 2>> devs;
+            for (std::size_t k = 0; k < setup.obs.size(); ++k) {
+                const FitObservation& f = setup.obs[k];
+                auto& d = devs[{f.planet, f.era}];
+                d[0].push_back(std::abs(dev[k][0] / f.sigma_lon_arcsec));
+                d[1].push_back(std::abs(dev[k][1] / f.sigma_lat_arcsec));
+            }
+            for (auto& [key, d] : devs)
+                for (std::size_t c = 0; c < 2; ++c) {
+                    auto& v = d[c];
+                    std::nth_element(v.begin(), v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2), v.end());
+                    spread[key][c] = std::max(1.0, 1.4826 * v[v.size() / 2]);
+                }
+        }
         for (std::size_t k = 0; k < setup.obs.size(); ++k) {
             FitObservation& f = setup.obs[k];
-            const bool reject = std::abs(dev[k][0] / f.sigma_lon_arcsec) > clip || std::abs(dev[k][1] / f.sigma_lat_arcsec) > clip;
+            const auto& sp = spread[{f.planet, f.era}];
+            const bool reject = std::abs(dev[k][0] / f.sigma_lon_arcsec) > clip * sp[0] ||
+                                std::abs(dev[k][1] / f.sigma_lat_arcsec) > clip * sp[1];
             if (reject != f.rejected) changed = true;
             f.rejected = reject;
         }

@@ -136,7 +136,7 @@ TEST_CASE("exercise folders are byte-identical for the same seed and differ for 
     run_new({sc, 5, a.string(), "", false}, sink);
     run_new({sc, 5, b.string(), "", false}, sink);
     run_new({sc, 6, c.string(), "", false}, sink);
-    for (const char* f : {"brief.toml", "observations.csv", "answer-key/answer_key.toml", "answer-key/true_positions.csv"}) {
+    for (const char* f : {"brief.toml", "observations.csv", "observer.csv", "answer-key/answer_key.toml", "answer-key/true_positions.csv"}) {
         CHECK(read(a / f) == read(b / f));
         CHECK(!read(a / f).empty());
     }
@@ -314,7 +314,7 @@ TEST_CASE("a killed `new` leaves no partial file that looks complete") {
     const fs::path ref = fresh_dir("kill-ref");
     const std::string sc = testing::source_path("scenarios/classic.toml");
     REQUIRE(testing::run_cli("new " + sc + " --seed 4 --out " + ref.string()).status == 0);
-    const char* files[] = {"brief.toml", "observations.csv", "answer-key/answer_key.toml", "answer-key/true_positions.csv"};
+    const char* files[] = {"brief.toml", "observations.csv", "observer.csv", "answer-key/answer_key.toml", "answer-key/true_positions.csv"};
     int killed_early = 0;
     for (int delay_ms : {5, 20, 40, 60, 90, 120, 160, 220}) {
         const fs::path dir = fresh_dir("kill");

@@ -1,0 +1,48 @@
+// wayward-view: the viewer's command line (CLI11 is included from this file only). Parses the arguments into
+// AppOptions and runs the viewer.
+#include <iostream>
+#include <regex>
+#include <string>
+
+#include <CLI/CLI.hpp>
+
+#include "viewer/app.hpp"
+#include "viewer/panels.hpp"
+
+int main(int argc, char** argv) {
+    using namespace wayward::viewer;
+    AppOptions opt;
+    CLI::App app{"wayward-view: watch an invented system from above and from the observer planet's sky"};
+    std::string size;
+    app.add_option("input", opt.input, "scenario file (TOML): author mode, everything shown");
+    app.add_option("--seed", opt.seed, "seed for scenarios that draw their values")->capture_default_str();
+    app.add_option("--panel", opt.panel, "panel to show first")->check(CLI::IsMember(panel_names()))->capture_default_str();
+    app.add_option("--size", size, "window size in pixels, WxH (default 1280x800)")
+        ->check(CLI::Validator([](std::string& s) {
+            return std::regex_match(s, std::regex("[1-9][0-9]{2,3}x[1-9][0-9]{2,3}")) ? std::string()
+                                                                                         : "expected WxH, e.g. 1280x800";
+        }, "WxH"));
+    auto* shot = app.add_option("--screenshot", opt.screenshot, "render headless, save the window as this PNG and exit");
+    app.add_option("--frames", opt.frames, "frames to render before the screenshot")
+        ->check(CLI::Range(1, 100000))->needs(shot)->capture_default_str();
+    app.add_option("--year", opt.year, "starting time as a decimal year (default: the scenario's epoch 0)");
+    app.add_option("--stars", opt.stars, "star-field size (default: the count law down to magnitude 7)")
+        ->check(CLI::Range(0L, 2'000'000L));
+    try {
+        app.parse(argc, argv);
+    } catch (const CLI::ParseError& e) {
+        const int rc = app.exit(e);
+        return rc == 0 ? 0 : 2;
+    }
+    if (!size.empty()) {
+        const auto x = size.find('x');
+        opt.width = static_cast<unsigned>(std::stoul(size.substr(0, x)));
+        opt.height = static_cast<unsigned>(std::stoul(size.substr(x + 1)));
+    }
+    try {
+        return run_viewer(opt);
+    } catch (const std::exception& e) {
+        std::cerr << "wayward-view: error: " << e.what() << "\n";
+        return 2;
+    }
+}
