@@ -3,6 +3,7 @@
 // and bit-identical reproducibility.
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <cmath>
 
 #include <boost/numeric/odeint.hpp>
@@ -154,4 +155,13 @@ TEST_CASE("the same scenario integrates to bit-identical states") {
     const System s0 = build_fixed_system(sc);
     const System a = propagate(s0, 5000.0), b = propagate(s0, 5000.0);
     CHECK(a.state == b.state);
+}
+
+TEST_CASE("wayward ephemeris prints byte-identical output twice") {
+    const std::string args = "ephemeris " + testing::source_path("scenarios/default.toml") + " --at 0,3652.5,54000.25";
+    const auto a = testing::run_cli(args), b = testing::run_cli(args);
+    CHECK(a.status == 0);
+    CHECK(a.output == b.output);
+    CHECK(a.output.find("Tolliver") != std::string::npos);
+    CHECK(std::count(a.output.begin(), a.output.end(), '\n') == 1 + 3 * 6);  // header + 3 times x 6 bodies
 }
