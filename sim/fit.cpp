@@ -3,8 +3,6 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdio>
-#include <cstdlib>
 #include <map>
 
 #include "sim/errors.hpp"
@@ -232,10 +230,6 @@ bool finite_difference_jacobian(const LeastSquaresProblem& p, const Eigen::Vecto
     jac.resize(r0.size(), n);
     Eigen::VectorXd xp = x, rp;
     for (Eigen::Index j = 0; j < n; ++j) {
-        if (p.frozen_columns && p.frozen_mask[static_cast<std::size_t>(j)]) {
-            jac.col(j) = p.frozen_columns->col(j);
-            continue;
-        }
         xp[j] = x[j] + p.step[j];
         ++evaluations;
         if (!p.evaluate(xp, rp)) {
@@ -290,7 +284,6 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen
         const bool ok = p.evaluate(x_new, r_new);
         const double chi2_new = ok ? r_new.squaredNorm() : INFINITY;
         const double predicted = res.chi2 - (r + J * delta).squaredNorm();
-        if (std::getenv("WAYWARD_LM_TRACE")) std::fprintf(stderr, "lm %d chi2 %.6g new %.6g lambda %.3g pred %.3g\n", res.iterations, res.chi2, chi2_new, lambda, predicted);
         if (predicted >= 0.0 && predicted < 1e-8 * res.chi2 + 1e-4 && lambda < 1e-3) {
             res.converged = true;  // the linearised model promises nothing more: a minimum to working precision
             break;

@@ -107,9 +107,6 @@ struct LeastSquaresProblem {
     // Fills the weighted residual vector for parameters x; returns false if the model cannot be evaluated.
     std::function<bool(const Eigen::VectorXd& x, Eigen::VectorXd& r)> evaluate;
     Eigen::VectorXd step;   // finite-difference step per parameter
-    // Columns of the Jacobian that are held fixed (precomputed) instead of differenced each iteration.
-    std::optional<Eigen::MatrixXd> frozen_columns;   // residuals x parameters, used where frozen_mask is true
-    std::vector<bool> frozen_mask;
 };
 
 struct LeastSquaresResult {
@@ -121,7 +118,7 @@ struct LeastSquaresResult {
     Eigen::MatrixXd jacobian;   // at x
 };
 
-// Jacobian by forward differences (columns not frozen).
+// Jacobian by forward differences.
 bool finite_difference_jacobian(const LeastSquaresProblem& p, const Eigen::VectorXd& x, const Eigen::VectorXd& r0,
                                 Eigen::MatrixXd& jac, int& evaluations);
 LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen::VectorXd& x0, int max_iterations = 30,

@@ -1,4 +1,4 @@
-// Odeint drivers for the truth integration and the quintic Hermite dense ephemeris. See integrate.hpp.
+// Odeint drivers for the truth integration and the degree-7 Hermite dense ephemeris. See integrate.hpp.
 #include "sim/integrate.hpp"
 
 #include <algorithm>
@@ -88,16 +88,21 @@ struct Recorder {
     std::size_t n;
     const std::vector<double>* gm;
     const CentralQuadrupole* quad = nullptr;
-    std::vector<double> times = {}, states = {}, accels = {};
+    std::vector<double> times = {}, states = {}, accels = {}, jerks = {};
+    std::vector<double> pos = {}, acc = {}, jerk = {};  // scratch, reused for every node
     void record(double t, const StateType& x) {
         times.push_back(t);
         states.insert(states.end(), x.begin(), x.end());
-        std::vector<double> pos(3 * n), acc(3 * n);
+        pos.resize(3 * n);
+        acc.resize(3 * n);
+        jerk.resize(3 * n);
         for (std::size_t i = 0; i < n; ++i)
             for (std::size_t k = 0; k < 3; ++k) pos[3 * i + k] = x[6 * i + k];
         nbody_accelerations(n, gm->data(), pos.data(), acc.data());
         if (quad) add_quadrupole(*quad, *gm, pos.data(), 3, acc.data(), 3);
+        nbody_jerks(n, gm->data(), x.data(), jerk.data());
         accels.insert(accels.end(), acc.begin(), acc.end());
+        jerks.insert(jerks.end(), jerk.begin(), jerk.end());
     }
 };
 
@@ -120,6 +125,8 @@ IntegrationOutcome drive(Controlled& stepper, const Rhs& rhs, StateType x, doubl
         double remaining = t1 - t;
         if (std::abs(dt) > std::abs(remaining)) dt = remaining;
         if (std::abs(dt) > max_step) dt = dir * max_step;
+        // Use the step that t + dt can represent, so that the sum of many steps carries no drift in time.
+        dt = (t + dt) - t;
         const odeint::controlled_step_result r = stepper.try_step(rhs, x, t, dt);
         if (r == odeint::success) {
             ++result.steps;
@@ -188,10 +195,13 @@ IntegrationResult integrate(const System& s, double t_begin, double t_end, const
                           back.states.begin() + static_cast<std::ptrdiff_t>(6 * n * (k + 1)));
         eph.accels.insert(eph.accels.end(), back.accels.begin() + static_cast<std::ptrdiff_t>(3 * n * k),
                           back.accels.begin() + static_cast<std::ptrdiff_t>(3 * n * (k + 1)));
+        eph.jerks.insert(eph.jerks.end(), back.jerks.begin() + static_cast<std::ptrdiff_t>(3 * n * k),
+                         back.jerks.begin() + static_cast<std::ptrdiff_t>(3 * n * (k + 1)));
     }
     eph.times.insert(eph.times.end(), fwd.times.begin(), fwd.times.end());
     eph.states.insert(eph.states.end(), fwd.states.begin(), fwd.states.end());
     eph.accels.insert(eph.accels.end(), fwd.accels.begin(), fwd.accels.end());
+    eph.jerks.insert(eph.jerks.end(), fwd.jerks.begin(), fwd.jerks.end());
     return result;
 }
 
@@ -202,24 +212,29 @@ System propagate(const System& s, double t, const IntegratorOptions& options) {
 }
 
 namespace {
-// Quintic Hermite basis on s in [0, 1] matching position, velocity and acceleration at both ends.
-struct Hermite5 {
-    double p0, v0, a0, a1, v1, p1;     // weights of p0, h v0, h^2 a0, h^2 a1, h v1, p1 (position)
-    double dp0, dv0, da0, da1, dv1, dp1;  // their derivatives d/ds
-    explicit Hermite5(double s) {
-        const double s2 = s * s, s3 = s2 * s, s4 = s3 * s, s5 = s4 * s;
-        p0 = 1.0 - 10.0 * s3 + 15.0 * s4 - 6.0 * s5;
-        v0 = s - 6.0 * s3 + 8.0 * s4 - 3.0 * s5;
-        a0 = 0.5 * s2 - 1.5 * s3 + 1.5 * s4 - 0.5 * s5;
-        a1 = 0.5 * s3 - s4 + 0.5 * s5;
-        v1 = -4.0 * s3 + 7.0 * s4 - 3.0 * s5;
-        p1 = 10.0 * s3 - 15.0 * s4 + 6.0 * s5;
-        dp0 = -30.0 * s2 + 60.0 * s3 - 30.0 * s4;
-        dv0 = 1.0 - 18.0 * s2 + 32.0 * s3 - 15.0 * s4;
-        da0 = s - 4.5 * s2 + 6.0 * s3 - 2.5 * s4;
-        da1 = 1.5 * s2 - 4.0 * s3 + 2.5 * s4;
-        dv1 = -12.0 * s2 + 28.0 * s3 - 15.0 * s4;
-        dp1 = 30.0 * s2 - 60.0 * s3 + 30.0 * s4;
+// Hermite basis of degree 7 on s in [0, 1] matching position, velocity, acceleration and jerk at both ends
+// (coefficients solved exactly). Weights apply to p0, h v0, h^2 a0, h^3 j0, p1, h v1, h^2 a1, h^3 j1.
+struct Hermite7 {
+    double w[8];   // position weights
+    double dw[8];  // their derivatives d/ds
+    explicit Hermite7(double s) {
+        static constexpr double c[8][8] = {
+            {1, 0, 0, 0, -35, 84, -70, 20},
+            {0, 1, 0, 0, -20, 45, -36, 10},
+            {0, 0, 0.5, 0, -5, 10, -7.5, 2},
+            {0, 0, 0, 1.0 / 6.0, -2.0 / 3.0, 1, -2.0 / 3.0, 1.0 / 6.0},
+            {0, 0, 0, 0, 35, -84, 70, -20},
+            {0, 0, 0, 0, -15, 39, -34, 10},
+            {0, 0, 0, 0, 2.5, -7, 6.5, -2},
+            {0, 0, 0, 0, -1.0 / 6.0, 0.5, -0.5, 1.0 / 6.0},
+        };
+        for (int i = 0; i < 8; ++i) {
+            double v = 0.0, dv = 0.0;
+            for (int k = 7; k >= 0; --k) v = v * s + c[i][k];
+            for (int k = 7; k >= 1; --k) dv = dv * s + k * c[i][k];
+            w[i] = v;
+            dw[i] = dv;
+        }
     }
 };
 }  // namespace
@@ -228,29 +243,36 @@ StateVector Ephemeris::state(std::size_t body, double t) const {
     if (!covers(t)) throw std::out_of_range("ephemeris: time " + std::to_string(t) + " d is outside the integrated span");
     if (body >= size()) throw std::out_of_range("ephemeris: no such body");
     const std::size_t n = size();
-    auto it = std::upper_bound(times.begin(), times.end(), t);
-    std::size_t k1 = static_cast<std::size_t>(it - times.begin());
-    if (k1 >= times.size()) k1 = times.size() - 1;
-    if (k1 == 0) k1 = 1;
     if (times.size() == 1) {
         const double* x = &states[6 * body];
         return {Vec3(x[0], x[1], x[2]), Vec3(x[3], x[4], x[5])};
     }
+    auto it = std::upper_bound(times.begin(), times.end(), t);
+    std::size_t k1 = static_cast<std::size_t>(it - times.begin());
+    if (k1 >= times.size()) k1 = times.size() - 1;
+    if (k1 == 0) k1 = 1;
     const std::size_t k0 = k1 - 1;
     const double h = times[k1] - times[k0];
     const double s = (t - times[k0]) / h;
-    const Hermite5 w(s);
+    const Hermite7 b(s);
     const double* x0 = &states[6 * n * k0 + 6 * body];
     const double* x1 = &states[6 * n * k1 + 6 * body];
     const double* a0 = &accels[3 * n * k0 + 3 * body];
     const double* a1 = &accels[3 * n * k1 + 3 * body];
+    const double* j0 = &jerks[3 * n * k0 + 3 * body];
+    const double* j1 = &jerks[3 * n * k1 + 3 * body];
+    const double h2 = h * h, h3 = h2 * h;
     StateVector out;
     for (int c = 0; c < 3; ++c) {
         const auto u = static_cast<std::size_t>(c);
-        out.position[c] = w.p0 * x0[u] + w.v0 * h * x0[3 + u] + w.a0 * h * h * a0[u] + w.a1 * h * h * a1[u] +
-                          w.v1 * h * x1[3 + u] + w.p1 * x1[u];
-        out.velocity[c] = (w.dp0 * x0[u] + w.dv0 * h * x0[3 + u] + w.da0 * h * h * a0[u] + w.da1 * h * h * a1[u] +
-                           w.dv1 * h * x1[3 + u] + w.dp1 * x1[u]) / h;
+        const double v[8] = {x0[u], h * x0[3 + u], h2 * a0[u], h3 * j0[u], x1[u], h * x1[3 + u], h2 * a1[u], h3 * j1[u]};
+        double p = 0.0, dp = 0.0;
+        for (int i = 0; i < 8; ++i) {
+            p += b.w[i] * v[i];
+            dp += b.dw[i] * v[i];
+        }
+        out.position[c] = p;
+        out.velocity[c] = dp / h;
     }
     return out;
 }

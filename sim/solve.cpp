@@ -4,8 +4,6 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
-#include <cstdio>
-#include <cstdlib>
 #include <sstream>
 
 #include <toml++/toml.h>
@@ -136,19 +134,12 @@ struct Problem {
     }
 };
 
-LeastSquaresProblem as_lsq(const Problem& p, const Eigen::MatrixXd* frozen_planets) {
+LeastSquaresProblem as_lsq(const Problem& p) {
     LeastSquaresProblem q;
     q.parameters = p.layout.size();
     q.residuals = p.residual_count();
     q.step = p.steps();
     q.evaluate = [&p](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return p.evaluate(x, r); };
-    if (frozen_planets) {
-        Eigen::MatrixXd cols = Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(q.residuals), static_cast<Eigen::Index>(q.parameters));
-        cols.topLeftCorner(frozen_planets->rows(), frozen_planets->cols()) = *frozen_planets;
-        q.frozen_columns = cols;
-        q.frozen_mask.assign(q.parameters, false);
-        for (std::size_t j = 0; j < p.layout.planets; ++j) q.frozen_mask[j] = true;
-    }
     return q;
 }
 
@@ -329,10 +320,6 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     }
     std::sort(order.begin(), order.end(), [&](std::size_t x, std::size_t y) { return cells[x].chi2 < cells[y].chi2; });
     if (order.empty()) throw std::runtime_error("the grid search found no hidden body that improves the fit");
-    if (std::getenv("WAYWARD_GRID_TRACE"))
-        for (std::size_t k = 0; k < std::min<std::size_t>(order.size(), 12); ++k)
-            std::fprintf(stderr, "grid a %.3f lon_ref %.1f alpha %.3g chi2 %.6g\n", grid_a[order[k] / static_cast<std::size_t>(nl)],
-                         360.0 * static_cast<double>(order[k] % static_cast<std::size_t>(nl)) / nl, cells[order[k]].alpha, cells[order[k]].chi2);
     if (order.size() > static_cast<std::size_t>(o.starts)) order.resize(static_cast<std::size_t>(o.starts));
 
     // ---- Levenberg-Marquardt from each start, with the planets' corrections eliminated ----
@@ -394,7 +381,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
 
     // ---- polish the best with the full Jacobian, re-estimating weights with the complete model ----
     report("polishing the best minimum", 0.78);
-    const LeastSquaresProblem full = as_lsq(prob, nullptr);
+    const LeastSquaresProblem full = as_lsq(prob);
     LeastSquaresResult best = levenberg_marquardt(full, fits[best_start].x, 8, cancelled);
     for (int round = 0; round < 3; ++round) {
         const ModelRun run = run_model(setup, prob.state(best.x), setup.t_end);

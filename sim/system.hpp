@@ -38,6 +38,9 @@ void nbody_accelerations(std::size_t n, const double* gm, const double* pos, dou
 // d/dt of a 6-per-body state (the form Odeint integrates).
 void nbody_derivative(std::size_t n, const double* gm, const double* state, double* dstate);
 
+// Jerks (time derivatives of the Newtonian accelerations) of a 6-per-body state: 3 per body.
+void nbody_jerks(std::size_t n, const double* gm, const double* state, double* jerk);
+
 double total_energy(const System& s);          // kinetic + potential, per unit G (au^5/d^4 * Msun/G ...)
 Vec3 angular_momentum(const System& s);        // sum of gm_i r_i x v_i
 StateVector barycentre(const System& s);       // GM-weighted mean position and velocity
