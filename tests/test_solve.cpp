@@ -105,6 +105,7 @@ TEST_CASE("tutorial scenario with noise: the prediction lands in the field for a
     });
     int hits = 0;
     for (int h : hit) hits += h;
+    MESSAGE("tutorial: " << hits << " of 10 seeds inside the field");
     CAPTURE(sep[0]); CAPTURE(sep[1]); CAPTURE(sep[2]); CAPTURE(sep[3]); CAPTURE(sep[4]);
     CAPTURE(sep[5]); CAPTURE(sep[6]); CAPTURE(sep[7]); CAPTURE(sep[8]); CAPTURE(sep[9]);
     CHECK(hits >= 9);
@@ -142,9 +143,7 @@ TEST_CASE("calibration: the truth falls inside the 1-sigma and 2-sigma ellipses 
     }
     REQUIRE(valid == n);
     const double f1 = static_cast<double>(in1) / n, f2 = static_cast<double>(in2) / n, f90 = static_cast<double>(in90) / n;
-    CAPTURE(f1);
-    CAPTURE(f2);
-    CAPTURE(f90);
+    MESSAGE("calibration over " << n << " seeds: inside 1 sigma " << f1 << ", inside 2 sigma " << f2 << ", inside the 90% radius " << f90);
     CHECK(std::abs(f1 - 0.393) <= 0.08);
     CHECK(std::abs(f2 - 0.865) <= 0.08);
     CHECK(std::abs(f90 - 0.90) <= 0.06);
@@ -174,8 +173,9 @@ TEST_CASE("the luck of the epoch: a distance from the spacing rule fits well nea
                    return std::abs(a.year - year) < std::abs(b.year - year);
                })->separation_arcmin;
     };
-    CAPTURE(sco.closest_year);
-    CAPTURE(sco.closest_arcmin);
+    MESSAGE("luck: closest " << sco.closest_arcmin << " arcmin in " << sco.closest_year << "; 50 years later " << at(sco.closest_year + 50.0)
+                              << " arcmin; 100 years later " << at(sco.closest_year + 100.0) << " arcmin; rule " << rule << " au, truth "
+                              << h.elements.semi_major_axis << " au");
     CHECK(sco.closest_year > 1800.0);
     CHECK(sco.closest_year < 1900.0);
     CHECK(sco.closest_arcmin < 300.0);
