@@ -107,6 +107,20 @@ std::string to_text(const toml::table& t) {
     return ss.str();
 }
 
+// The inverse of elements_table: a bound orbit's elements in degrees, validated.
+Elements read_elements(TableReader& r) {
+    Elements el;
+    el.semi_major_axis = r.required_number("a");
+    if (!(el.semi_major_axis > 0.0)) r.fail("a", "must be positive");
+    el.eccentricity = r.required_number("e");
+    if (!(el.eccentricity >= 0.0 && el.eccentricity < 1.0)) r.fail("e", "must be in [0, 1)");
+    el.inclination = r.required_number("i_deg") * deg;
+    el.ascending_node = r.required_number("node_deg") * deg;
+    el.arg_periapsis = r.required_number("peri_deg") * deg;
+    el.mean_anomaly = r.required_number("mean_anomaly_deg") * deg;
+    return el;
+}
+
 std::string brief_text(const Brief& b) {
     toml::table root;
     toml::table ex;
@@ -390,14 +404,7 @@ Brief load_brief(const std::string& path) {
         p.observed = r.boolean("observed").value_or(false);
         p.mass = r.required_number("mass");
         if (!(p.mass > 0.0)) r.fail("mass", "must be positive");
-        p.elements.semi_major_axis = r.required_number("a");
-        if (!(p.elements.semi_major_axis > 0.0)) r.fail("a", "must be positive");
-        p.elements.eccentricity = r.required_number("e");
-        if (!(p.elements.eccentricity >= 0.0 && p.elements.eccentricity < 1.0)) r.fail("e", "must be in [0, 1)");
-        p.elements.inclination = r.required_number("i_deg") * deg;
-        p.elements.ascending_node = r.required_number("node_deg") * deg;
-        p.elements.arg_periapsis = r.required_number("peri_deg") * deg;
-        p.elements.mean_anomaly = r.required_number("mean_anomaly_deg") * deg;
+        p.elements = read_elements(r);
         r.finish();
         b.planets.push_back(p);
     }
@@ -482,12 +489,7 @@ AnswerKey open_answer_key(const Brief& brief, const std::string& key_path) {
         d.role = r.required_string("role") == "hidden" ? Role::hidden : Role::known;
         d.observer = r.boolean("observer").value_or(false);
         d.mass = r.required_number("mass");
-        d.elements.semi_major_axis = r.required_number("a");
-        d.elements.eccentricity = r.required_number("e");
-        d.elements.inclination = r.required_number("i_deg") * deg;
-        d.elements.ascending_node = r.required_number("node_deg") * deg;
-        d.elements.arg_periapsis = r.required_number("peri_deg") * deg;
-        d.elements.mean_anomaly = r.required_number("mean_anomaly_deg") * deg;
+        d.elements = read_elements(r);
         const auto pos = r.numbers("helio_position_au"), vel = r.numbers("helio_velocity_au_per_day");
         if (!pos || pos->size() != 3) r.fail("helio_position_au", "needs three numbers");
         if (!vel || vel->size() != 3) r.fail("helio_velocity_au_per_day", "needs three numbers");
