@@ -213,14 +213,15 @@ TEST_CASE("the model of the default scenario: bodies by role, author mode, sampl
 }
 
 TEST_CASE("load problems come back as messages naming the input") {
-    CHECK(load_model("", {}).error.find("no file given") != std::string::npos);
+    CHECK(load_model("", {}).error.find("nothing to open") != std::string::npos);
     const LoadOutcome missing = load_model("/nonexistent/orrin.toml", {});
     CHECK_FALSE(missing.model);
     CHECK(missing.error.find("/nonexistent/orrin.toml") != std::string::npos);
     CHECK(missing.error.find("no such file") != std::string::npos);
     const auto dir = std::filesystem::temp_directory_path() / "wayward-viewer-model-test";
     std::filesystem::create_directories(dir);
-    CHECK(load_model(dir.string(), {}).error.find("folder") != std::string::npos);
+    // A folder is opened as an exercise (trainee mode): without a brief it is refused, naming the file.
+    CHECK(load_model(dir.string(), {}).error.find("brief.toml is missing") != std::string::npos);
     const auto bad = dir / "bad.toml";
     std::ofstream(bad) << "[scenario]\nname = \"x\"\nepoch0_year = 1700.0\nspan_years = 300.0\nbogus_field = 1\n";
     const LoadOutcome malformed = load_model(bad.string(), {});
@@ -244,6 +245,7 @@ TEST_CASE("sky panel: click places the prediction at the current epoch, drag set
     CHECK(c.marker.lat == doctest::Approx(0.0));
     CHECK(c.marker.epoch_days == doctest::Approx(1234.5));
     CHECK(c.marker.radius == doctest::Approx(m->scenario.plan.field_radius_deg * deg));  // the plan's field to start
+    CHECK(m->field_radius() == doctest::Approx(m->scenario.plan.field_radius_deg * deg));
     sky->on_mouse(move(550, 270), canvas, c, *m);
     CHECK(c.marker.radius == doctest::Approx(50.0 / scale).epsilon(1e-9));
     sky->on_mouse(release(sf::Mouse::Left, 550, 270), canvas, c, *m);

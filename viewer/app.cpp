@@ -15,6 +15,8 @@
 
 #include <imgui.h>
 
+#include "sim/units.hpp"
+#include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/controls.hpp"
 #include "viewer/draw_util.hpp"
@@ -59,6 +61,10 @@ void apply_style() {
     c[ImGuiCol_SliderGrab] = palette::to_imgui(palette::sky_blue);
     c[ImGuiCol_SliderGrabActive] = palette::to_imgui(palette::orange);
     c[ImGuiCol_CheckMark] = palette::to_imgui(palette::sky_blue);
+    c[ImGuiCol_PlotHistogram] = palette::to_imgui(palette::sky_blue);  // progress bars
+    c[ImGuiCol_PopupBg] = rgb(22, 28, 44, 0.98f);
+    c[ImGuiCol_ModalWindowDimBg] = rgb(8, 10, 18, 0.6f);
+    c[ImGuiCol_TitleBgActive] = rgb(36, 56, 84);
     c[ImGuiCol_Separator] = rgb(52, 60, 80);
     c[ImGuiCol_TableRowBgAlt] = rgb(255, 255, 255, 0.03f);
     c[ImGuiCol_TableHeaderBg] = rgb(30, 38, 56);
@@ -123,11 +129,14 @@ public:
                 controls_.time_days = t;
             }
         }
+        if (model_) apply_trainee_options();
 
         if (!open_window()) return 2;
         const int status = loop();
+        if (headless()) print_scores();
         bridge_shutdown(bridge_);
         ImGui::DestroyContext();
+        if (model_ && model_->analysis) model_->analysis->solve_job.cancel();  // closing the window stops a run
         return status;
     }
 
@@ -146,14 +155,62 @@ private:
     DrawContext ctx_;
     bool canvas_drag_ = false;
     std::vector<double> frame_ms_;
+    sf::Clock wait_clock_;
 
     bool headless() const { return !opt_.screenshot.empty(); }
+    bool refused_ = false;  // a headless reveal was refused
+    std::optional<int> pending_minimum_;  // --minimum, applied when the solution it refers to is there
+
+    // --prediction, --run-solve, --minimum, --reveal: trainee mode only.
+    void apply_trainee_options() {
+        ViewerModel& m = *model_;
+        const bool trainee = m.mode == ViewerMode::trainee;
+        if (!trainee && (!opt_.prediction.empty() || opt_.run_solve || opt_.reveal || opt_.minimum != 1)) {
+            error_ = "--prediction, --run-solve, --minimum and --reveal need an exercise folder (trainee mode), not a scenario file";
+            std::cerr << "wayward-view: " << error_ << "\n";
+            model_.reset();
+            return;
+        }
+        if (!trainee) return;
+        if (!opt_.prediction.empty()) {
+            const double year = opt_.prediction.size() > 2 ? opt_.prediction[2] : m.search_epoch_year();
+            const double t = m.days_at_year(year);
+            if (!(t >= m.t_begin() && t <= m.t_end())) {
+                error_ = "--prediction: the year " + format_decimal_year(year, 2) + " is outside the exercise's span";
+                std::cerr << "wayward-view: " << error_ << "\n";
+                model_.reset();
+                return;
+            }
+            controls_.marker = PredictionMarker{true, wrap_two_pi(opt_.prediction[0] * deg), opt_.prediction[1] * deg, t, m.field_radius()};
+        }
+        if (opt_.minimum > 1) pending_minimum_ = opt_.minimum - 1;
+        Analysis& a = *m.analysis;
+        if (opt_.run_solve && !a.start_solve()) std::cerr << "wayward-view: " << a.form_error << "\n";
+        if (opt_.reveal && !a.request_reveal(m)) {
+            std::cerr << "wayward-view: the answer key was refused, nothing revealed: " << a.reveal_error << "\n";
+            refused_ = true;
+        }
+    }
+
+    // One line per score, for scripts and tests (screenshot mode).
+    void print_scores() const {
+        if (!model_ || !model_->analysis || !model_->analysis->scores) return;
+        const ScoreSet& s = *model_->analysis->scores;
+        for (const auto* sp : {s.trainee ? &*s.trainee : nullptr, s.solver ? &*s.solver : nullptr}) {
+            if (!sp) continue;
+            std::printf("wayward-view: score %s separation_arcmin=%.6f hit=%d epoch=%.6f\n", sp == (s.trainee ? &*s.trainee : nullptr) ? "trainee" : "solution",
+                        sp->score.separation_arcmin, sp->score.hit ? 1 : 0, sp->score.epoch_year);
+        }
+        if (!s.trainee_error.empty()) std::printf("wayward-view: score trainee error: %s\n", s.trainee_error.c_str());
+        if (!s.solver_error.empty()) std::printf("wayward-view: score solution error: %s\n", s.solver_error.c_str());
+    }
 
     bool open_window() {
         std::string title = "Wayward viewer";
-        if (model_) title += " \u2014 " + model_->scenario.name;
+        if (model_) title += " \u2014 " + model_->facts.name;
         window_storage_.emplace();
         window_ = &*window_storage_;
+        release_display_probe();
         window_->create(sf::VideoMode(opt_.width, opt_.height), sf::String::fromUtf8(title.begin(), title.end()),
                        sf::Style::Default);
         if (!window_->isOpen()) {
@@ -205,7 +262,7 @@ private:
                 window_->setView(sf::View(sf::FloatRect(0, 0, static_cast<float>(e.size.width), static_cast<float>(e.size.height))));
                 return;
             case sf::Event::KeyPressed:
-                if (imgui_keys) return;
+                if (imgui_keys || ImGui::IsPopupOpen("", ImGuiPopupFlags_AnyPopupId)) return;
                 if (e.key.code == sf::Keyboard::Space) controls_.playing = !controls_.playing;
                 if (e.key.code == sf::Keyboard::Right) step_time(controls_.step_days);
                 if (e.key.code == sf::Keyboard::Left) step_time(-controls_.step_days);
@@ -292,11 +349,15 @@ private:
             return;
         }
         ViewerModel& m = *model_;
-        ImGui::TextUnformatted(m.scenario.name.c_str());
+        ImGui::TextUnformatted(m.facts.name.c_str());
         ImGui::TextDisabled("%s \u00b7 seed %llu", std::filesystem::path(m.source).filename().string().c_str(),
                             static_cast<unsigned long long>(m.seed));
         if (m.mode == ViewerMode::author)
             ImGui::TextColored(palette::to_imgui(palette::hidden), "Author mode: the hidden body is shown");
+        else if (m.revealed)
+            ImGui::TextColored(palette::to_imgui(palette::hidden), "Trainee mode: the answer key is open");
+        else
+            ImGui::TextDisabled("Trainee mode: the hidden body is sealed");
         ImGui::Separator();
 
         for (std::size_t k = 0; k < panels_.size(); ++k)
@@ -309,21 +370,43 @@ private:
         if (ImGui::CollapsingHeader("Observing plan")) observing_plan(m);
 
         ImGui::Separator();
-        ImGui::TextDisabled("Space play/pause \u00b7 \u2190/\u2192 step \u00b7 1/2 panels");
+        ImGui::TextDisabled("Space play/pause \u00b7 \u2190/\u2192 step \u00b7 1\u2013%zu panels", panels_.size());
         const ImGuiIO& io = ImGui::GetIO();
         if (!headless()) ImGui::TextDisabled("%.1f ms per frame", 1000.0f / std::max(io.Framerate, 1e-3f));
         ImGui::End();
     }
 
-    // The scenario's observing plan as the records will have it: eras with their noise, limits, search epochs.
+    // The observing plan: the scenario's (author) as the records will have it, or the brief's (trainee).
     void observing_plan(const ViewerModel& m) {
-        const ObservingPlan& plan = m.scenario.plan;
-        ImGui::Text("elongation limit %.0f\u00b0 \u00b7 field radius %.2f\u00b0", plan.elongation_limit_deg, plan.field_radius_deg);
-        if (!plan.search_epochs_year.empty()) {
+        const PlanFacts& f = m.facts;
+        ImGui::Text("elongation limit %.0f\u00b0 \u00b7 field radius %.2f\u00b0", f.elongation_limit_deg, f.field_radius_deg);
+        if (!f.search_epochs_year.empty()) {
             std::string epochs;
-            for (double y : plan.search_epochs_year) epochs += (epochs.empty() ? "" : ", ") + format_decimal_year(y, 1);
+            for (double y : f.search_epochs_year) epochs += (epochs.empty() ? "" : ", ") + format_decimal_year(y, 1);
             ImGui::Text("search epoch %s", epochs.c_str());
         }
+        if (m.mode == ViewerMode::trainee) {
+            const Exercise& ex = *m.exercise;
+            ImGui::Text("%zu observations", ex.observations.size());
+            if (ImGui::BeginTable("eras", 3, ImGuiTableFlags_RowBg | ImGuiTableFlags_SizingStretchProp)) {
+                ImGui::TableSetupColumn("era");
+                ImGui::TableSetupColumn("years");
+                ImGui::TableSetupColumn("records \u03c3");
+                ImGui::TableHeadersRow();
+                for (const BriefEra& e : ex.brief.eras) {
+                    ImGui::TableNextRow();
+                    ImGui::TableNextColumn();
+                    ImGui::TextUnformatted(e.label.c_str());
+                    ImGui::TableNextColumn();
+                    ImGui::Text("%.0f\u2013%.0f", e.start_year, e.end_year);
+                    ImGui::TableNextColumn();
+                    ImGui::TextUnformatted(e.records_sigma ? "yes" : "no");
+                }
+                ImGui::EndTable();
+            }
+            return;
+        }
+        const ObservingPlan& plan = m.scenario.plan;
         if (ImGui::BeginTable("eras", 3, ImGuiTableFlags_RowBg | ImGuiTableFlags_SizingStretchProp)) {
             ImGui::TableSetupColumn("era");
             ImGui::TableSetupColumn("years");
@@ -376,6 +459,28 @@ private:
                 any_event = true;
             }
             if (!window_->isOpen()) break;
+            // The trainee's work in worker threads: take what finished, start what is due. A screenshot waits
+            // for all of it (those frames are neither counted nor timed).
+            bool waiting = false;
+            if (model_ && model_->analysis) {
+                Analysis& a = *model_->analysis;
+                a.poll(*model_, controls_);
+                // --minimum picks from the run's solution with --run-solve, else from the folder's.
+                if (pending_minimum_ && a.solution && !a.solve_job.running() && (!opt_.run_solve || a.source == SolutionSource::run)) {
+                    if (static_cast<std::size_t>(*pending_minimum_) < a.solution->minima.size()) controls_.selected_minimum = *pending_minimum_;
+                    else std::cerr << "wayward-view: --minimum " << *pending_minimum_ + 1 << ": the solution has " << a.solution->minima.size() << " minima\n";
+                    pending_minimum_.reset();
+                }
+                waiting = a.busy(*model_, controls_) || (headless() && pending_minimum_ && (a.solve_job.running() || a.fit_job.running()));
+                if (waiting) idle_clock.restart();
+            }
+            if (headless() && waiting) {
+                if (wait_clock_.getElapsedTime() > sf::seconds(1800.0f)) {
+                    std::cerr << "wayward-view: gave up waiting for the background work after 30 minutes\n";
+                    return 2;
+                }
+                sf::sleep(sf::milliseconds(5));
+            }
             // Nothing moving and nobody touching it for a second: redraw at ~15 frames a second, not 60.
             if (any_event || controls_.playing || canvas_drag_) idle_clock.restart();
             if (!headless() && idle_clock.getElapsedTime() > sf::seconds(1.0f)) sf::sleep(sf::milliseconds(50));
@@ -403,12 +508,16 @@ private:
             window_->popGLStates();
             bridge_render(bridge_, *window_);
 
+            if (headless() && waiting) {
+                window_->display();
+                continue;
+            }
             ++frame;
             if (headless() && frame >= opt_.frames) {
                 if (!save_screenshot()) {
                     std::cerr << "wayward-view: could not write the screenshot " << opt_.screenshot << "\n";
                     status = 2;
-                } else if (!model_) {
+                } else if (!model_ || refused_) {
                     status = 2;  // the screenshot shows the message; the run still failed
                 }
                 window_->close();

@@ -47,6 +47,10 @@ struct ViewerControls {
     float star_faint_mag = 7.0f;
     SkyView sky;
     PredictionMarker marker;
+    bool show_solution = true;       // the solver's prediction (ellipse, 90% circle, track) on the sky
+
+    // Solve: the local minimum whose track is shown (index into the solution's minima, best first).
+    int selected_minimum = 0;
 
     bool show_help = false;
 };

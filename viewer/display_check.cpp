@@ -8,6 +8,10 @@
 
 namespace wayward::viewer {
 
+namespace {
+Display* probe = nullptr;  // kept open until SFML has its own connection (see display_available)
+}
+
 bool display_available(std::string* why) {
     const char* name = std::getenv("DISPLAY");
     if (!name || !*name) {
@@ -19,8 +23,16 @@ bool display_available(std::string* why) {
         if (why) *why = std::string("cannot open the X display '") + name + "' (is an X server running there?)";
         return false;
     }
-    XCloseDisplay(d);
+    // Closing this connection and letting SFML open its own at once fails now and then under Xvfb (SFML then
+    // aborts): the probe stays open until the window exists (release_display_probe).
+    release_display_probe();
+    probe = d;
     return true;
+}
+
+void release_display_probe() {
+    if (probe) XCloseDisplay(probe);
+    probe = nullptr;
 }
 
 }  // namespace wayward::viewer

@@ -46,6 +46,7 @@ public:
     LabelPlacer() = default;
     LabelPlacer(ImVec2 lo, ImVec2 hi) : lo_(lo), hi_(hi) {}
     void block(ImVec2 centre, float radius) { taken_.push_back({centre.x - radius, centre.y - radius, centre.x + radius, centre.y + radius}); }
+    void block_rect(ImVec2 lo, ImVec2 hi) { taken_.push_back({lo.x, lo.y, hi.x, hi.y}); }
     // Top-left corner for a label of `size` beside a marker of `radius` at `at`.
     ImVec2 place(ImVec2 at, float radius, ImVec2 size) {
         const float g = radius + 5.0f;

@@ -186,6 +186,24 @@ void bridge_end_frame(ImGuiSfmlBridge& bridge) {
     apply_latched_releases(bridge);
 }
 
+bool bridge_render_list_to_texture(ImDrawList& list, ImVec2 origin, ImVec2 size, sf::RenderTexture& texture) {
+    if (!texture.setActive(true)) return false;
+    texture.clear(sf::Color::Transparent);
+    ImDrawList* lists[] = {&list};
+    ImDrawData data;
+    data.Valid = true;
+    data.CmdLists = lists;
+    data.CmdListsCount = 1;
+    data.TotalVtxCount = list.VtxBuffer.Size;
+    data.TotalIdxCount = list.IdxBuffer.Size;
+    data.DisplayPos = origin;
+    data.DisplaySize = size;
+    data.FramebufferScale = ImVec2(1.0f, 1.0f);
+    ImGui_ImplOpenGL3_RenderDrawData(&data);
+    texture.display();
+    return true;
+}
+
 void bridge_render(ImGuiSfmlBridge& bridge, sf::RenderWindow& window) {
     if (bridge.in_frame) {
         ImGui::Render();

@@ -9,6 +9,7 @@
 
 #include <array>
 
+#include <SFML/Graphics/RenderTexture.hpp>
 #include <SFML/Graphics/RenderWindow.hpp>
 #include <SFML/System/Clock.hpp>
 #include <SFML/Window/Event.hpp>
@@ -50,6 +51,11 @@ void bridge_end_frame(ImGuiSfmlBridge& bridge);
 // Ends the frame, draws it into `window` with the OpenGL3 backend (on top of whatever SFML drew), and applies
 // the latched releases.
 void bridge_render(ImGuiSfmlBridge& bridge, sf::RenderWindow& window);
+
+// Renders one draw list (recorded in window pixels, the box at `origin` of `size` pixels) into `texture` with
+// the same OpenGL3 renderer, on a transparent ground; the window's context must be re-activated afterwards.
+// Returns false if the texture could not be made active.
+bool bridge_render_list_to_texture(ImDrawList& list, ImVec2 origin, ImVec2 size, sf::RenderTexture& texture);
 
 // The ImGuiMouseButton for an SFML button (-1 if ImGui has none).
 int imgui_mouse_button(sf::Mouse::Button button);

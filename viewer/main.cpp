@@ -12,9 +12,12 @@
 int main(int argc, char** argv) {
     using namespace wayward::viewer;
     AppOptions opt;
-    CLI::App app{"wayward-view: watch an invented system from above and from the observer planet's sky"};
+    CLI::App app{"wayward-view: rehearse on an exercise folder (trainee mode), or watch a scenario's invented system "
+                 "from above and from the observer planet's sky (author mode)"};
     std::string size;
-    app.add_option("input", opt.input, "scenario file (TOML): author mode, everything shown");
+    app.add_option("input", opt.input,
+                   "exercise folder (trainee mode: the hidden body stays sealed until revealed) or scenario file "
+                   "(TOML, author mode: everything shown)");
     app.add_option("--seed", opt.seed, "seed for scenarios that draw their values")->capture_default_str();
     app.add_option("--panel", opt.panel, "panel to show first")->check(CLI::IsMember(panel_names()))->capture_default_str();
     app.add_option("--size", size, "window size in pixels, WxH (default 1280x800)")
@@ -25,9 +28,18 @@ int main(int argc, char** argv) {
     auto* shot = app.add_option("--screenshot", opt.screenshot, "render headless, save the window as this PNG and exit");
     app.add_option("--frames", opt.frames, "frames to render before the screenshot")
         ->check(CLI::Range(1, 100000))->needs(shot)->capture_default_str();
-    app.add_option("--year", opt.year, "starting time as a decimal year (default: the scenario's epoch 0)");
+    app.add_option("--year", opt.year, "starting time as a decimal year (default: epoch 0, the start of the span)");
     app.add_option("--stars", opt.stars, "star-field size (default: the count law down to magnitude 7)")
         ->check(CLI::Range(0L, 2'000'000L));
+    app.add_option("--prediction", opt.prediction,
+                   "trainee mode: your prediction as LON,LAT[,YEAR] (degrees; year default: the search epoch)")
+        ->delimiter(',')->expected(2, 3);
+    app.add_flag("--run-solve", opt.run_solve, "trainee mode: start the solver with the default priors at once");
+    app.add_option("--minimum", opt.minimum, "trainee mode: the local minimum to show (1 = best)")
+        ->check(CLI::Range(1, 1000))->capture_default_str();
+    app.add_flag("--reveal", opt.reveal,
+                 "testing aid, with --screenshot only: reveal the answer key without the confirmation dialog")
+        ->needs(shot);
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {

@@ -1,4 +1,5 @@
-// Building the viewer's model from a scenario file with sim. See model.hpp.
+// Building the viewer's model with sim: from a scenario file (author mode) or an exercise folder (trainee
+// mode), and adding the hidden body at the reveal. See model.hpp.
 #include "viewer/model.hpp"
 
 #include <algorithm>
@@ -9,27 +10,47 @@
 #include "sim/elements.hpp"
 #include "sim/errors.hpp"
 #include "sim/units.hpp"
+#include "viewer/analysis.hpp"
 
 namespace wayward::viewer {
 
 bool ViewerModel::shows(std::size_t body) const {
-    return mode == ViewerMode::author || bodies[body].role != Role::hidden;
+    // In trainee mode the hidden body is only ever in `bodies` after the reveal (from the answer key).
+    return mode == ViewerMode::author || bodies[body].role != Role::hidden || bodies[body].from_key;
 }
 
-double ViewerModel::elongation_limit() const { return scenario.plan.elongation_limit_deg * deg; }
+bool ViewerModel::hidden_shown() const {
+    for (const BodyView& b : bodies)
+        if (b.role == Role::hidden && shows(b.index)) return true;
+    return false;
+}
 
-Vec3 ViewerModel::position(std::size_t body, double t) const { return run.ephemeris.position(body, t); }
+double ViewerModel::elongation_limit() const { return facts.elongation_limit_deg * deg; }
+double ViewerModel::field_radius() const { return facts.field_radius_deg * deg; }
+double ViewerModel::search_epoch_year() const {
+    return facts.search_epochs_year.empty() ? year(t_end()) : facts.search_epochs_year.front();
+}
+
+Vec3 ViewerModel::position(std::size_t body, double t) const {
+    const BodyView& b = bodies[body];
+    return b.from_key ? revealed->run.ephemeris.position(b.source, t) : run.ephemeris.position(b.source, t);
+}
 
 SkyPosition ViewerModel::sky(std::size_t body, double t) const {
-    return apparent(run.ephemeris, frame, observer, body, t).sky;
+    const BodyView& b = bodies[body];
+    // The revealed body is seen from the true observer in the true observer's frame, as sim's scoring sees it.
+    if (b.from_key) return apparent(revealed->run.ephemeris, revealed->frame, revealed->observer, b.source, t).sky;
+    return apparent(run.ephemeris, frame, bodies[observer].source, b.source, t).sky;
 }
 
 double ViewerModel::elongation(std::size_t body, double t) const {
-    return wayward::elongation(run.ephemeris, observer, body, t);
+    const BodyView& b = bodies[body];
+    if (b.from_key) return wayward::elongation(revealed->run.ephemeris, revealed->observer, b.source, t);
+    return wayward::elongation(run.ephemeris, bodies[observer].source, b.source, t);
 }
 
-double ViewerModel::year(double t) const { return decimal_year(scenario.epoch0_year, t); }
-double ViewerModel::days_at_year(double y) const { return days_from_year(scenario.epoch0_year, y); }
+double ViewerModel::year(double t) const { return decimal_year(facts.epoch0_year, t); }
+double ViewerModel::days_at_year(double y) const { return days_from_year(facts.epoch0_year, y); }
 
 std::size_t ViewerModel::nearest_sample(double t) const {
     if (sample_times.empty()) return 0;
@@ -54,6 +75,7 @@ void fill_bodies(ViewerModel& m) {
         b.role = s.bodies[i].role;
         b.observer = s.bodies[i].observer;
         b.index = i;
+        b.source = i;
         if (i == 0) {
             b.mass = m.truth.star_mass;
         } else {
@@ -63,6 +85,30 @@ void fill_bodies(ViewerModel& m) {
             b.e = d.elements.eccentricity;
             if (d.elements.eccentricity < 1.0)
                 b.period_days = orbital_period(d.elements.semi_major_axis, gm_from_mass(m.truth.star_mass + d.mass));
+        }
+        m.bodies.push_back(b);
+    }
+}
+
+// Trainee mode: the bodies of the team's model (star and known planets), with the brief's elements.
+void fill_bodies_from_brief(ViewerModel& m, const System& s) {
+    const Brief& brief = m.exercise->brief;
+    m.bodies.clear();
+    for (std::size_t i = 0; i < s.size(); ++i) {
+        BodyView b;
+        b.name = s.bodies[i].name;
+        b.role = s.bodies[i].role;
+        b.observer = s.bodies[i].observer;
+        b.index = i;
+        b.source = i;
+        if (i == 0) {
+            b.mass = brief.star_mass;
+        } else {
+            const BriefPlanet& p = brief.planets[i - 1];  // known_model_system keeps the brief's order
+            b.mass = p.mass;
+            b.a_au = p.elements.semi_major_axis;
+            b.e = p.elements.eccentricity;
+            if (b.e < 1.0) b.period_days = orbital_period(b.a_au, gm_from_mass(brief.star_mass + p.mass));
         }
         m.bodies.push_back(b);
     }
@@ -83,7 +129,7 @@ void fill_samples(ViewerModel& m, double step) {
         for (std::size_t i = 0; i < n; ++i) {
             const Vec3 p = m.position(i, t);
             for (int c = 0; c < 3; ++c) m.sample_xyz[(k * n + i) * 3 + static_cast<std::size_t>(c)] = static_cast<float>(p[c]);
-            if (i == m.observer) continue;
+            if (i == m.observer) continue;  // (sky() takes each body's own ephemeris)
             const SkyPosition sky = m.sky(i, t);
             m.sample_lon[k * n + i] = static_cast<float>(sky.lon);
             m.sample_lat[k * n + i] = static_cast<float>(sky.lat);
@@ -93,34 +139,69 @@ void fill_samples(ViewerModel& m, double step) {
 
 }  // namespace
 
+namespace {
+
+void load_author(ViewerModel& m, const std::string& path, const LoadOptions& options) {
+    m.mode = ViewerMode::author;
+    m.scenario = load_scenario(path);
+    m.truth = generate(m.scenario, options.seed, &m.run);
+    m.facts.name = m.scenario.name;
+    m.facts.epoch0_year = m.scenario.epoch0_year;
+    m.facts.span_days = m.truth.span_days;
+    m.facts.elongation_limit_deg = m.scenario.plan.elongation_limit_deg;
+    m.facts.field_radius_deg = m.scenario.plan.field_radius_deg;
+    m.facts.search_epochs_year = m.scenario.plan.search_epochs_year;
+    m.observer = m.truth.system.observer_index();
+    m.frame = observer_frame(m.truth.system, m.observer);
+    fill_bodies(m);
+}
+
+void load_trainee(ViewerModel& m, const std::string& dir, const LoadOptions& options) {
+    m.mode = ViewerMode::trainee;
+    // Brief, observations and the observer's track only: the answer key stays sealed.
+    m.exercise = std::make_shared<const Exercise>(load_exercise(dir));
+    const Brief& b = m.exercise->brief;
+    m.seed = b.seed;
+    m.facts.name = b.scenario_name;
+    m.facts.epoch0_year = b.epoch0_year;
+    m.facts.span_days = b.span_years * julian_year_days;
+    m.facts.elongation_limit_deg = b.elongation_limit_deg;
+    m.facts.field_radius_deg = b.field_radius_deg;
+    m.facts.search_epochs_year = b.search_epochs_year;
+    const System known = known_model_system(b);
+    m.run = integrate(known, 0.0, m.facts.span_days);
+    if (m.run.outcome != IntegrationOutcome::ok)
+        throw std::runtime_error("the model of the known planets could not be integrated: " + to_string(m.run.outcome));
+    m.observer = known.observer_index();
+    m.frame = observer_frame(known, m.observer);
+    fill_bodies_from_brief(m, known);
+    m.analysis = std::make_shared<Analysis>(m.exercise);
+    m.analysis->load_solution_file();
+    if (options.start_work) m.analysis->start_fit();
+}
+
+}  // namespace
+
 LoadOutcome load_model(const std::string& path, const LoadOptions& options) {
     LoadOutcome out;
     std::error_code ec;
     if (path.empty()) {
-        out.error = "no file given: open a scenario, e.g. wayward-view scenarios/default.toml";
-        return out;
-    }
-    if (std::filesystem::is_directory(path, ec)) {
-        out.error = path + " is a folder: exercise folders (trainee mode) are not supported by this viewer yet; "
-                           "give a scenario file (.toml) for author mode";
+        out.error = "nothing to open: give an exercise folder (trainee mode, e.g. one made by `wayward new`) or a "
+                    "scenario file (author mode, e.g. scenarios/default.toml)";
         return out;
     }
     if (!std::filesystem::exists(path, ec)) {
-        out.error = "cannot open " + path + ": no such file";
+        out.error = "cannot open " + path + ": no such file or folder";
         return out;
     }
     try {
         ViewerModel m;
-        m.mode = ViewerMode::author;
         m.source = path;
         m.seed = options.seed;
-        m.scenario = load_scenario(path);
-        m.truth = generate(m.scenario, options.seed, &m.run);
-        m.observer = m.truth.system.observer_index();
-        m.frame = observer_frame(m.truth.system, m.observer);
-        fill_bodies(m);
+        if (std::filesystem::is_directory(path, ec)) load_trainee(m, path, options);
+        else load_author(m, path, options);
         fill_samples(m, options.sample_step_days);
-        m.star_spec.seed = options.seed;
+        m.star_spec.seed = m.seed;
         m.star_spec.whole_sphere = true;
         regenerate_stars(m, options.star_count, options.star_faint_mag);
         out.model = std::move(m);
@@ -130,6 +211,71 @@ LoadOutcome load_model(const std::string& path, const LoadOptions& options) {
         out.error = path + ": " + e.what();
     }
     return out;
+}
+
+RevealedTruth make_revealed_truth(const Brief& brief, const AnswerKey& key, const std::vector<double>& times) {
+    RevealedTruth r;
+    r.key = key;
+    const System sys = key.system();
+    const auto hidden = key.hidden_index();
+    if (!hidden) throw InputError(key.file, 0, "body", "the answer key has no hidden body");
+    r.hidden = *hidden;
+    r.observer = sys.observer_index();
+    r.frame = observer_frame(sys, r.observer);
+    r.run = integrate(sys, 0.0, brief.span_years * julian_year_days);
+    if (r.run.outcome != IntegrationOutcome::ok)
+        throw std::runtime_error("the answer key's system could not be integrated: " + to_string(r.run.outcome));
+    const Ephemeris& eph = r.run.ephemeris;
+    r.xyz.assign(times.size() * 3, std::numeric_limits<float>::quiet_NaN());
+    r.lon.assign(times.size(), std::numeric_limits<float>::quiet_NaN());
+    r.lat = r.lon;
+    for (std::size_t k = 0; k < times.size(); ++k) {
+        const double t = std::clamp(times[k], eph.t_begin(), eph.t_end());
+        const Vec3 p = eph.position(r.hidden, t);
+        for (int c = 0; c < 3; ++c) r.xyz[k * 3 + static_cast<std::size_t>(c)] = static_cast<float>(p[c]);
+        const SkyPosition s = apparent(eph, r.frame, r.observer, r.hidden, t).sky;
+        r.lon[k] = static_cast<float>(s.lon);
+        r.lat[k] = static_cast<float>(s.lat);
+    }
+    for (const DrawnBody& d : key.bodies)
+        if (d.name == key.hidden_name) {
+            r.mass = d.mass;
+            r.a_au = d.elements.semi_major_axis;
+            r.e = d.elements.eccentricity;
+            if (r.e < 1.0) r.period_days = orbital_period(r.a_au, gm_from_mass(key.star_mass + d.mass));
+        }
+    return r;
+}
+
+void apply_reveal(ViewerModel& m, RevealedTruth truth) {
+    if (m.revealed) return;
+    const std::size_t n = m.body_count(), count = m.sample_times.size();
+    if (truth.xyz.size() != count * 3 || truth.lon.size() != count) throw std::logic_error("apply_reveal: samples of another model");
+    BodyView b;
+    b.name = truth.key.hidden_name;
+    b.role = Role::hidden;
+    b.index = n;
+    b.from_key = true;
+    b.source = truth.hidden;
+    b.mass = truth.mass;
+    b.a_au = truth.a_au;
+    b.e = truth.e;
+    b.period_days = truth.period_days;
+    // One more body in every sample row.
+    std::vector<float> xyz(count * (n + 1) * 3), lon(count * (n + 1)), lat(count * (n + 1));
+    for (std::size_t k = 0; k < count; ++k) {
+        std::copy_n(&m.sample_xyz[k * n * 3], n * 3, &xyz[k * (n + 1) * 3]);
+        std::copy_n(&truth.xyz[k * 3], 3, &xyz[(k * (n + 1) + n) * 3]);
+        std::copy_n(&m.sample_lon[k * n], n, &lon[k * (n + 1)]);
+        std::copy_n(&m.sample_lat[k * n], n, &lat[k * (n + 1)]);
+        lon[k * (n + 1) + n] = truth.lon[k];
+        lat[k * (n + 1) + n] = truth.lat[k];
+    }
+    m.sample_xyz = std::move(xyz);
+    m.sample_lon = std::move(lon);
+    m.sample_lat = std::move(lat);
+    m.bodies.push_back(b);
+    m.revealed = std::move(truth);
 }
 
 }  // namespace wayward::viewer

@@ -1,14 +1,19 @@
-// What the viewer shows, as computed by sim: the scenario, the drawn system and its truth integration, the
-// observer's frame, positions and apparent directions sampled from the ephemeris for trails and tracks, and
-// the background star field. Built once when a file is opened; panels only read it. Every position and date
-// here comes from a sim function (Ephemeris::position, apparent, elongation, decimal_year, orbital_period ...).
+// What the viewer shows, as computed by sim. Author mode (a scenario file): the drawn system and its truth
+// integration. Trainee mode (an exercise folder): the brief and observations only, and the team's model of the
+// known planets (sim's known_model_system integrated); the hidden body is not in the model at all until the
+// answer key is revealed, when its true orbit (the key's system integrated) is added as one more body. Both:
+// the observer's frame, positions and apparent directions sampled from the ephemeris for trails and tracks,
+// and the background star field. Panels only read it. Every position and date here comes from a sim function
+// (Ephemeris::position, apparent, elongation, decimal_year, orbital_period ...).
 #pragma once
 
 #include <cstdint>
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
 
+#include "sim/exercise.hpp"
 #include "sim/generate.hpp"
 #include "sim/geometry.hpp"
 #include "sim/scenario.hpp"
@@ -16,15 +21,41 @@
 
 namespace wayward::viewer {
 
-// Author mode shows everything of a scenario, the hidden body included. (Trainee mode, for exercise folders,
-// keeps the hidden body out of view until a confirmed reveal.)
+class Analysis;  // viewer/analysis.hpp: the trainee's fit, solve and score work
+
+// Author mode shows everything of a scenario, the hidden body included. Trainee mode, for exercise folders,
+// keeps the hidden body out of view until a confirmed reveal.
 enum class ViewerMode { author, trainee };
+
+// What the panels say about the setting, from the scenario (author mode) or the brief (trainee mode).
+struct PlanFacts {
+    std::string name;                 // scenario name
+    double epoch0_year = 0.0;
+    double span_days = 0.0;
+    double elongation_limit_deg = 0.0;
+    double field_radius_deg = 1.0;
+    std::vector<double> search_epochs_year;
+};
+
+// The answer key once revealed: the true system integrated by sim (as sim's true_track integrates it).
+struct RevealedTruth {
+    AnswerKey key;
+    IntegrationResult run;
+    ObserverFrame frame;             // the true observer's frame
+    std::size_t observer = 0;        // in the key's system
+    std::size_t hidden = 0;          // in the key's system
+    // The hidden body at the model's sample times (same layout as one body's samples in ViewerModel).
+    std::vector<float> xyz, lon, lat;
+    double mass = 0.0, a_au = 0.0, e = 0.0, period_days = 0.0;
+};
 
 struct BodyView {
     std::string name;
     Role role = Role::known;
     bool observer = false;
-    std::size_t index = 0;     // in the system / ephemeris
+    std::size_t index = 0;     // in `bodies`
+    bool from_key = false;     // the revealed hidden body: positions from the answer key's integration
+    std::size_t source = 0;    // index in its ephemeris (ViewerModel::run, or RevealedTruth::run when from_key)
     double mass = 0.0;         // solar masses
     double a_au = 0.0;         // osculating semi-major axis at epoch 0
     double e = 0.0;
@@ -33,11 +64,15 @@ struct BodyView {
 
 struct ViewerModel {
     ViewerMode mode = ViewerMode::author;
-    std::string source;          // the file opened
+    std::string source;          // the file or folder opened
     std::uint64_t seed = 1;
-    Scenario scenario;
-    Truth truth;
-    IntegrationResult run;
+    PlanFacts facts;
+    Scenario scenario;           // author mode
+    Truth truth;                 // author mode
+    std::shared_ptr<const Exercise> exercise;  // trainee mode: brief, observations, observer track
+    std::shared_ptr<Analysis> analysis;        // trainee mode: fit, solve, reveal and score work
+    std::optional<RevealedTruth> revealed;     // trainee mode, after the reveal
+    IntegrationResult run;       // author: the truth; trainee: the team's known-planet model
     std::size_t observer = 0;
     ObserverFrame frame;
     std::vector<BodyView> bodies;  // one per system body, same order (bodies[0] is the star)
@@ -53,10 +88,13 @@ struct ViewerModel {
     std::vector<Star> stars;
 
     double t_begin() const { return 0.0; }
-    double t_end() const { return truth.span_days; }
+    double t_end() const { return facts.span_days; }
     std::size_t body_count() const { return bodies.size(); }
-    bool shows(std::size_t body) const;  // false for the hidden body outside author mode
+    bool shows(std::size_t body) const;  // false for the hidden body in trainee mode before the reveal
+    bool hidden_shown() const;           // a hidden body is among the bodies shown
     double elongation_limit() const;     // radians, from the observing plan
+    double field_radius() const;         // radians, the search field's radius
+    double search_epoch_year() const;    // the first search epoch (or the span's end if none)
 
     // Straight from sim, at any time in the span.
     Vec3 position(std::size_t body, double t) const;
@@ -73,6 +111,7 @@ struct LoadOptions {
     double sample_step_days = 2.0;
     long star_count = -1;         // < 0: the count law's expected count down to star_faint_mag
     double star_faint_mag = 7.0;
+    bool start_work = true;       // trainee mode: start the known-bodies fit at once
 };
 
 struct LoadOutcome {
@@ -80,8 +119,14 @@ struct LoadOutcome {
     std::string error;            // set when model is empty: what went wrong, for the window and stderr
 };
 
-// Opens a scenario file (author mode). Never throws: problems come back as a message.
+// Opens a scenario file (author mode) or an exercise folder (trainee mode; starts the known-bodies fit in a
+// worker thread unless `start_work` is false). Never throws: problems come back as a message.
 LoadOutcome load_model(const std::string& path, const LoadOptions& options);
+
+// Adds the revealed hidden body to a trainee model (its samples were computed with make_revealed_truth).
+void apply_reveal(ViewerModel& model, RevealedTruth truth);
+// Integrates the key's true system and samples its hidden body at the model's sample times. Throws on failure.
+RevealedTruth make_revealed_truth(const Brief& brief, const AnswerKey& key, const std::vector<double>& sample_times);
 
 // Regenerates the star field with a new count or faint limit.
 void regenerate_stars(ViewerModel& model, long count, double faint_mag);

@@ -34,8 +34,13 @@ inline const sf::Color star = yellow;
 inline const sf::Color observer = bluish_green;
 inline const sf::Color known = sky_blue;
 inline const sf::Color hidden = vermillion;
-inline const sf::Color prediction = orange;
+inline const sf::Color prediction = orange;            // the trainee's own prediction
+inline const sf::Color solution = blue;                // the solver's prediction
 inline const sf::Color unobservable = reddish_purple;  // the elongation-limit region around the star
+inline const sf::Color set_aside{150, 158, 175};       // observations set aside as outliers (= text_dim)
+
+// Observing eras in the residual plots, told apart by colour and marker (palette order).
+inline const sf::Color era_colours[] = {sky_blue, orange, bluish_green, yellow, reddish_purple, blue};
 
 inline sf::Color for_body(wayward::Role role, bool is_observer) {
     if (role == wayward::Role::star) return star;

@@ -1,10 +1,13 @@
 // "System from above": the barycentric reference plane seen from +z, with the star, each body coloured by
-// role, trails drawn from the ephemeris samples, a distance grid and a scale bar. Wheel zooms about the
-// cursor, dragging pans.
+// role, trails drawn from the ephemeris samples, a distance grid and a scale bar. In trainee mode the planets
+// are the team's model from the brief, the selected solution's orbit is drawn as the model integrates it, and
+// after the reveal the hidden body's true orbit from the answer key. Wheel zooms about the cursor, dragging pans.
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <optional>
 
+#include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/draw_util.hpp"
 #include "viewer/palette.hpp"
@@ -34,6 +37,12 @@ double widest_orbit(const ViewerModel& m) {
     double r = 1.0;
     for (const BodyView& b : m.bodies)
         if (b.index != 0 && m.shows(b.index)) r = std::max(r, b.a_au * (1.0 + std::min(b.e, 0.99)));
+    // The solver's selected orbit too (trainee mode), so that it is in view at zoom 1.
+    if (m.analysis && m.analysis->minimum_view && m.analysis->minimum_view->solution_id == m.analysis->solution_id) {
+        const std::vector<float>& xyz = m.analysis->minimum_view->xyz;
+        for (std::size_t k = 0; k + 2 < xyz.size(); k += 3 * 16)
+            if (!std::isnan(xyz[k])) r = std::max(r, static_cast<double>(std::hypot(xyz[k], xyz[k + 1])));
+    }
     return r;
 }
 
@@ -57,7 +66,7 @@ std::string format_au(double au) {
 
 const char* role_name(const BodyView& b) {
     if (b.role == Role::star) return "star";
-    if (b.role == Role::hidden) return "hidden";
+    if (b.role == Role::hidden) return b.from_key ? "hidden (key)" : "hidden";
     return b.observer ? "observer" : "known";
 }
 
@@ -152,6 +161,7 @@ public:
         list.PushClipRect(lo, hi, true);
         draw_grid(list, map, canvas, ctx);
         if (c.trails) draw_trails(list, map, c, m);
+        draw_solver_orbit(list, map, c, m, ctx);
         draw_bodies(list, map, canvas, c, m, ctx);
         draw_overlay(list, map, canvas, c, m, ctx);
         list.PopClipRect();
@@ -219,6 +229,41 @@ private:
         }
     }
 
+    // The selected local minimum's orbit as the team's model integrates it (trainee mode, when solved).
+    void draw_solver_orbit(ImDrawList& list, const PlanMap& map, const ViewerControls& c, const ViewerModel& m, const DrawContext& ctx) {
+        const MinimumView* v = selected_view(m, c);
+        if (!v) return;
+        std::vector<ImVec2> pts;
+        const std::size_t count = v->xyz.size() / 3;
+        const std::size_t stride = std::max<std::size_t>(1, count / 3000);
+        auto flush = [&] {
+            if (pts.size() >= 2) list.AddPolyline(pts.data(), static_cast<int>(pts.size()), im_color(palette::solution, 200), 0, 1.6f);
+            pts.clear();
+        };
+        for (std::size_t k = 0; k < count; k += stride) {
+            const float* p = &v->xyz[k * 3];
+            if (std::isnan(p[0])) {
+                flush();
+                continue;
+            }
+            pts.push_back(map.to_screen(p[0], p[1]));
+        }
+        flush();
+        const std::size_t k = m.nearest_sample(c.time_days);
+        if (k < count && !std::isnan(v->xyz[k * 3])) {
+            const ImVec2 s = map.to_screen(v->xyz[k * 3], v->xyz[k * 3 + 1]);
+            list.AddCircle(s, 6.0f, im_color(palette::solution), 20, 2.0f);
+            (void)ctx;  // its label is placed with the bodies' (draw_bodies)
+        }
+    }
+
+    static const MinimumView* selected_view(const ViewerModel& m, const ViewerControls& c) {
+        if (!c.show_solution || !m.analysis || !m.analysis->minimum_view) return nullptr;
+        const MinimumView& v = *m.analysis->minimum_view;
+        if (v.solution_id != m.analysis->solution_id || v.minimum != static_cast<std::size_t>(std::max(0, c.selected_minimum))) return nullptr;
+        return &v;
+    }
+
     static ImVec2 sample_point(const ViewerModel& m, const PlanMap& map, std::size_t k, std::size_t i, std::size_t n) {
         const float* p = &m.sample_xyz[(k * n + i) * 3];
         return map.to_screen(p[0], p[1]);
@@ -233,6 +278,7 @@ private:
         };
         std::vector<Placed> placed;
         LabelPlacer labels(ImVec2(canvas.left + 4, canvas.top + 4), ImVec2(canvas.left + canvas.width - 4, canvas.top + canvas.height - 4));
+        labels.block_rect(ImVec2(canvas.left, canvas.top), ImVec2(canvas.left + 470.0f, canvas.top + 82.0f));  // the title block
         for (const BodyView& b : m.bodies) {
             if (!m.shows(b.index)) continue;
             const Vec3 p = m.position(b.index, c.time_days);
@@ -250,7 +296,21 @@ private:
             labels.block(s, extent);
             placed.push_back({&b, s, extent});
         }
+        // The solver's body on its orbit, labelled like the bodies.
+        std::optional<ImVec2> solver_at;
+        if (const MinimumView* v = selected_view(m, c)) {
+            const std::size_t k = m.nearest_sample(c.time_days);
+            if (k * 3 + 1 < v->xyz.size() && !std::isnan(v->xyz[k * 3])) {
+                solver_at = map.to_screen(v->xyz[k * 3], v->xyz[k * 3 + 1]);
+                labels.block(*solver_at, 8.0f);
+            }
+        }
         if (!c.labels) return;
+        if (solver_at) {
+            const MinimumView& v = *selected_view(m, c);
+            draw_label(list, ctx.fonts, ctx.text_size * 0.85f, labels, *solver_at, 8.0f, im_color(palette::text_dim),
+                       v.minimum == 0 ? "solver" : "minimum " + std::to_string(v.minimum + 1));
+        }
         for (const Placed& p : placed) {
             const BodyView& b = *p.body;
             const sf::Color col = b.role == Role::star ? palette::text : palette::for_body(b.role, b.observer);
@@ -268,7 +328,10 @@ private:
                   im_color(palette::text), format_decimal_year(year) + "   \u00b7   " + format_calendar_date(calendar_date(year)),
                   Align::left, true);
         draw_text(list, ctx.fonts, ts * 0.85f, ImVec2(canvas.left + pad, canvas.top + pad + ts * 3.1f),
-                  im_color(palette::text_dim), "barycentric reference plane, seen from +z", Align::left, true);
+                  im_color(palette::text_dim),
+                  m.mode == ViewerMode::trainee ? "barycentric reference plane, seen from +z; planets from the brief\u2019s model"
+                                                : "barycentric reference plane, seen from +z",
+                  Align::left, true);
 
         // Scale bar, bottom left.
         const double bar_au = nice_step(120.0 / map.scale);
@@ -282,14 +345,18 @@ private:
 
         // Legend, bottom right.
         const float lx = canvas.left + canvas.width - pad - ts * 11.5f;
-        const int rows = m.mode == ViewerMode::author ? 4 : 3;
+        const bool solver = selected_view(m, c) != nullptr;
+        const int rows = 3 + (m.hidden_shown() ? 1 : 0) + (solver ? 1 : 0);
         float ly = canvas.top + canvas.height - pad - ts * 1.35f * static_cast<float>(rows);
         list.AddRectFilled(ImVec2(lx - 10, ly - 8), ImVec2(canvas.left + canvas.width - pad + 6, canvas.top + canvas.height - pad + 2),
                            IM_COL32(10, 13, 22, 190), 6.0f);
         ly = legend_row(list, ctx.fonts, ts * 0.9f, ImVec2(lx, ly), palette::star, "star");
         ly = legend_row(list, ctx.fonts, ts * 0.9f, ImVec2(lx, ly), palette::observer, "observer planet");
         ly = legend_row(list, ctx.fonts, ts * 0.9f, ImVec2(lx, ly), palette::known, "known planet");
-        if (m.mode == ViewerMode::author) legend_row(list, ctx.fonts, ts * 0.9f, ImVec2(lx, ly), palette::hidden, "hidden body");
+        if (m.hidden_shown())
+            ly = legend_row(list, ctx.fonts, ts * 0.9f, ImVec2(lx, ly), palette::hidden,
+                            m.mode == ViewerMode::trainee ? "hidden body (true orbit)" : "hidden body");
+        if (solver) legend_row(list, ctx.fonts, ts * 0.9f, ImVec2(lx, ly), palette::solution, "solver\u2019s orbit (model)", true);
     }
 };
 

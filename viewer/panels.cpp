@@ -7,6 +7,9 @@ std::vector<std::unique_ptr<Panel>> make_panels() {
     std::vector<std::unique_ptr<Panel>> panels;
     panels.push_back(make_system_panel());
     panels.push_back(make_sky_panel());
+    panels.push_back(make_residuals_panel());
+    panels.push_back(make_solve_panel());
+    panels.push_back(make_score_panel());
     return panels;
 }
 

@@ -2,7 +2,8 @@
 // A panel adds its own widgets to the sidebar, takes the canvas's mouse events that ImGui does not want, and
 // draws into the canvas: SFML for bulk point sprites (the star field), ImGui's background draw list for
 // anti-aliased lines, discs and text. Panels read the model (sim's numbers) and the controls; they compute no
-// physics. New panels (residuals, solve, score) slot into make_panels().
+// physics. Panels: system, sky (both modes), residuals, solve, score (trainee mode; in author mode they say what
+// they need).
 #pragma once
 
 #include <memory>
@@ -48,6 +49,9 @@ public:
 
 std::unique_ptr<Panel> make_system_panel();
 std::unique_ptr<Panel> make_sky_panel();
+std::unique_ptr<Panel> make_residuals_panel();
+std::unique_ptr<Panel> make_solve_panel();
+std::unique_ptr<Panel> make_score_panel();
 
 // Every panel of this build, in sidebar order.
 std::vector<std::unique_ptr<Panel>> make_panels();
