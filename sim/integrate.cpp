@@ -98,9 +98,8 @@ struct Recorder {
         jerk.resize(3 * n);
         for (std::size_t i = 0; i < n; ++i)
             for (std::size_t k = 0; k < 3; ++k) pos[3 * i + k] = x[6 * i + k];
-        nbody_accelerations(n, gm->data(), pos.data(), acc.data());
+        nbody_accelerations_and_jerks(n, gm->data(), x.data(), acc.data(), jerk.data());
         if (quad) add_quadrupole(*quad, *gm, pos.data(), 3, acc.data(), 3);
-        nbody_jerks(n, gm->data(), x.data(), jerk.data());
         accels.insert(accels.end(), acc.begin(), acc.end());
         jerks.insert(jerks.end(), jerk.begin(), jerk.end());
     }

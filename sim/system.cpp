@@ -82,6 +82,29 @@ void nbody_jerks(std::size_t n, const double* gm, const double* x, double* jerk)
     }
 }
 
+void nbody_accelerations_and_jerks(std::size_t n, const double* gm, const double* x, double* acc, double* jerk) {
+    for (std::size_t i = 0; i < 3 * n; ++i) acc[i] = jerk[i] = 0.0;
+    for (std::size_t i = 0; i < n; ++i) {
+        for (std::size_t j = i + 1; j < n; ++j) {
+            double r[3], v[3];
+            for (std::size_t c = 0; c < 3; ++c) {
+                r[c] = x[6 * j + c] - x[6 * i + c];
+                v[c] = x[6 * j + 3 + c] - x[6 * i + 3 + c];
+            }
+            const double r2 = r[0] * r[0] + r[1] * r[1] + r[2] * r[2];
+            const double inv_r3 = 1.0 / (r2 * std::sqrt(r2));
+            const double rv = 3.0 * (r[0] * v[0] + r[1] * v[1] + r[2] * v[2]) / r2;
+            for (std::size_t c = 0; c < 3; ++c) {
+                const double a = r[c] * inv_r3, jt = (v[c] - rv * r[c]) * inv_r3;
+                acc[3 * i + c] += gm[j] * a;
+                acc[3 * j + c] -= gm[i] * a;
+                jerk[3 * i + c] += gm[j] * jt;
+                jerk[3 * j + c] -= gm[i] * jt;
+            }
+        }
+    }
+}
+
 double total_energy(const System& s) {
     // Energy times G: sum gm_i v_i^2 / 2 - sum_{i<j} gm_i gm_j / r_ij (units au^5/d^4, exact up to a factor G).
     double kinetic = 0.0, potential = 0.0;
