@@ -264,3 +264,110 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
 }
 
 }  // namespace wayward
+
+// ---- Campaigns, merge and the error budget ----
+#include <atomic>
+#include <csignal>
+
+#include "sim/budget.hpp"
+#include "sim/campaign.hpp"
+
+namespace wayward {
+
+namespace {
+std::atomic<bool> campaign_stop{false};
+extern "C" void campaign_on_signal(int sig) {
+    campaign_stop.store(true);
+    std::signal(sig, SIG_DFL);  // a second signal stops at once
+}
+}  // namespace
+
+int run_campaign_command(const CampaignArgs& args, std::ostream& out, std::ostream& progress) {
+    // Everything is checked before any work: the spec, every scenario, the shard, the output folder.
+    const CampaignSpec spec = load_campaign_spec(args.spec);
+    CampaignRun run;
+    run.shard = parse_shard(args.shard);
+    run.out_dir = args.out_dir;
+    run.threads = args.threads;
+    run.quiet = args.quiet;
+    run.cancel = &campaign_stop;
+    campaign_stop.store(false);
+    if (args.max_memory_gb < 0.0 && args.max_memory_gb != -1.0) throw InputError("", 0, "--max-memory", "must be 0 (no limit) or positive");
+    limit_memory(args.max_memory_gb, args.threads);
+    auto old_int = std::signal(SIGINT, campaign_on_signal);
+    auto old_term = std::signal(SIGTERM, campaign_on_signal);
+    CampaignOutcome o;
+    try {
+        o = run_campaign(spec, run, progress);
+    } catch (...) {
+        std::signal(SIGINT, old_int);
+        std::signal(SIGTERM, old_term);
+        throw;
+    }
+    std::signal(SIGINT, old_int);
+    std::signal(SIGTERM, old_term);
+    if (!o.complete) {
+        progress << "Stopped: " << o.resumed + o.finished << " of " << o.shard_cases << " cases of shard " << run.shard.text()
+                 << " are in " << args.out_dir << "/cases.csv; run the same command again to finish the rest.\n";
+        return 130;
+    }
+    out << detail::read_text_file(args.out_dir + "/summary.txt");
+    out << "Wrote " << args.out_dir << "/cases.csv (" << o.shard_cases << " cases, " << o.resumed << " from an earlier run), summary.txt, "
+        << "success_vs_epoch.png, separations.png, luck_fraction.png, closest_agreement.png\n";
+    return 0;
+}
+
+int run_merge(const MergeArgs& args, std::ostream& out) {
+    if (args.out_dir.empty()) throw InputError("", 0, "--out", "is required");
+    merge_campaigns(args.dirs, args.out_dir, out);
+    return 0;
+}
+
+int run_budget_command(const BudgetArgs& args, std::ostream& out, std::ostream& progress) {
+    const Scenario sc = load_scenario(args.scenario);
+    if (!sc.plan.present) throw InputError(sc.file, 0, "observing", "the scenario has no [observing] plan, so there is nothing to observe");
+    BudgetOptions o;
+    o.runs = args.runs;
+    o.seed = args.seed;
+    o.threads = args.threads;
+    o.ecc_sigma = args.ecc_sigma;
+    o.tilt_sigma_deg = args.tilt_sigma_deg;
+    o.starts = args.starts;
+    for (const std::string& e : args.era_sigma) {
+        const auto eq = e.rfind('=');
+        char* end = nullptr;
+        const double f = eq == std::string::npos ? NAN : std::strtod(e.c_str() + eq + 1, &end);
+        if (eq == std::string::npos || eq == 0 || !end || *end != '\0' || !std::isfinite(f))
+            throw InputError("", 0, "--era-sigma", "\"" + e + "\" is not LABEL=FACTOR (e.g. --era-sigma survey=2)");
+        o.era_sigma_scale.emplace_back(e.substr(0, eq), f);
+    }
+    o.end_year = args.end_year;
+    o.cadence = args.cadence;
+    o.mass_error = args.mass_error;
+    o.only = args.only;
+    o.combine = args.combine;
+    apply_what_ifs(sc, o);  // every option checked before any work
+    if (args.out_dir.empty()) throw InputError("", 0, "--out", "is required");
+    std::error_code ec;
+    std::filesystem::create_directories(args.out_dir, ec);
+    if (ec || !std::filesystem::is_directory(args.out_dir, ec))
+        throw InputError(args.out_dir, 0, "--out", "cannot create the folder" + (ec ? ": " + ec.message() : std::string()));
+    const std::string probe = args.out_dir + "/.budget-write-test";
+    try {
+        write_file_atomic(probe, "");
+        std::filesystem::remove(probe, ec);
+    } catch (const std::exception& e) {
+        throw InputError(args.out_dir, 0, "--out", std::string("cannot write in the folder: ") + e.what());
+    }
+    if (args.max_memory_gb < 0.0 && args.max_memory_gb != -1.0) throw InputError("", 0, "--max-memory", "must be 0 (no limit) or positive");
+    limit_memory(args.max_memory_gb, args.threads);
+    const BudgetResult b = run_budget(sc, o, args.quiet ? nullptr : &progress);
+    write_file_atomic(args.out_dir + "/budget.csv", budget_csv(b));
+    write_file_atomic(args.out_dir + "/budget_runs.csv", budget_runs_csv(b));
+    budget_plot(b, args.out_dir + "/budget.png");
+    out << budget_table(b);
+    out << "Wrote " << args.out_dir << "/budget.csv, budget_runs.csv and budget.png\n";
+    return 0;
+}
+
+}  // namespace wayward

@@ -65,3 +65,45 @@ struct ScoreArgs {
 int run_score(const ScoreArgs& args, std::ostream& out);
 
 }  // namespace wayward
+
+// ---- Campaigns, merge and the error budget (sim/campaign.hpp, sim/budget.hpp) ----
+namespace wayward {
+
+struct CampaignArgs {
+    std::string spec;
+    std::string out_dir;
+    unsigned threads = 0;        // cases solved at once (0: all cores)
+    std::string shard = "1/1";   // K/N: the units u with u % N == K - 1
+    double max_memory_gb = -1.0; // address-space cap (-1: 1 GB + 0.5 GB per thread; 0: none)
+    bool quiet = false;
+};
+// Runs (or resumes) a campaign; SIGINT/SIGTERM stop it after keeping every finished row (exit status 130).
+int run_campaign_command(const CampaignArgs& args, std::ostream& out, std::ostream& progress);
+
+struct MergeArgs {
+    std::vector<std::string> dirs;
+    std::string out_dir;
+};
+int run_merge(const MergeArgs& args, std::ostream& out);
+
+struct BudgetArgs {
+    std::string scenario;
+    int runs = 10;
+    std::uint64_t seed = 1;
+    std::string out_dir = ".";
+    unsigned threads = 0;
+    std::optional<double> ecc_sigma, tilt_sigma_deg;
+    int starts = 4;
+    std::vector<std::string> era_sigma;  // LABEL=FACTOR
+    std::optional<double> end_year;
+    double cadence = 1.0;
+    std::optional<double> mass_error;
+    std::vector<std::string> only;
+    std::vector<std::string> combine;
+    double max_memory_gb = -1.0;
+    bool quiet = false;
+};
+// Prints the budget table and writes OUT/budget.csv, OUT/budget_runs.csv and OUT/budget.png.
+int run_budget_command(const BudgetArgs& args, std::ostream& out, std::ostream& progress);
+
+}  // namespace wayward

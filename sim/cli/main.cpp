@@ -59,6 +59,39 @@ int main(int argc, char** argv) {
     c_score->add_option("--prediction", scr.prediction_file, "a TOML file with lon_deg, lat_deg, epoch_year");
     c_score->add_option("--window", scr.window_years, "luck-curve half-window (years)")->capture_default_str();
 
+    CampaignArgs cmp;
+    auto* c_campaign = app.add_subcommand("campaign", "run (or resume) a campaign: many exercises solved and scored, with a report");
+    c_campaign->add_option("spec", cmp.spec, "campaign spec (TOML)")->required();
+    c_campaign->add_option("--out", cmp.out_dir, "campaign folder (cases.csv, manifest, report)")->required();
+    c_campaign->add_option("--threads", cmp.threads, "cases solved at once (0: all cores; results do not depend on it)")->capture_default_str();
+    c_campaign->add_option("--shard", cmp.shard, "run shard K of N: the solves u with u % N == K - 1")->capture_default_str();
+    c_campaign->add_option("--max-memory", cmp.max_memory_gb, "address-space cap in GB, so a runaway model run fails its case (default 1 + 0.5 per thread; 0: none)");
+    c_campaign->add_flag("--quiet", cmp.quiet, "no progress output");
+
+    MergeArgs mrg;
+    auto* c_merge = app.add_subcommand("merge", "join the shard folders of one campaign, check that no case is missing or doubled, report");
+    c_merge->add_option("dirs", mrg.dirs, "shard folders")->required();
+    c_merge->add_option("--out", mrg.out_dir, "merged campaign folder")->required();
+
+    BudgetArgs bud;
+    auto* c_budget = app.add_subcommand("budget", "error budget: each error source alone, its share of the prediction error, search radii");
+    c_budget->add_option("scenario", bud.scenario, "scenario file (TOML)")->required();
+    c_budget->add_option("--runs", bud.runs, "systems drawn (seeds)")->capture_default_str();
+    c_budget->add_option("--seed", bud.seed, "seed of the runs' seeds")->capture_default_str();
+    c_budget->add_option("--out", bud.out_dir, "folder for budget.csv, budget_runs.csv, budget.png")->capture_default_str();
+    c_budget->add_option("--threads", bud.threads, "solves at once (0: all cores; results do not depend on it)")->capture_default_str();
+    c_budget->add_option("--ecc-sigma", bud.ecc_sigma, "base prior sigma on e cos(varpi), e sin(varpi) (default 0.5: broad)");
+    c_budget->add_option("--tilt-sigma", bud.tilt_sigma_deg, "base prior sigma (deg) on the tilt components (default 30: broad)");
+    c_budget->add_option("--starts", bud.starts, "grid minima refined per solve")->capture_default_str();
+    c_budget->add_option("--era-sigma", bud.era_sigma, "what-if: scale an era's sigma, LABEL=FACTOR (repeatable)");
+    c_budget->add_option("--end-year", bud.end_year, "what-if: the last era ends in this year instead");
+    c_budget->add_option("--cadence", bud.cadence, "what-if: multiply every era's observations per season")->capture_default_str();
+    c_budget->add_option("--mass-error", bud.mass_error, "relative sigma of the known masses in the brief (default: the scenario's)");
+    c_budget->add_option("--only", bud.only, "compute only these lines (keys as in budget.csv)")->delimiter(',');
+    c_budget->add_option("--combine", bud.combine, "the sources the all-on line switches on together (default: every one)")->delimiter(',');
+    c_budget->add_option("--max-memory", bud.max_memory_gb, "address-space cap in GB (default 1 + 0.5 per thread; 0: none)");
+    c_budget->add_flag("--quiet", bud.quiet, "no progress output");
+
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {
@@ -71,6 +104,9 @@ int main(int argc, char** argv) {
         if (c_res->parsed()) return run_residuals(res, std::cout, std::cerr);
         if (c_solve->parsed()) return run_solve(sv, std::cout, std::cerr);
         if (c_score->parsed()) return run_score(scr, std::cout);
+        if (c_campaign->parsed()) return run_campaign_command(cmp, std::cout, std::cerr);
+        if (c_merge->parsed()) return run_merge(mrg, std::cout);
+        if (c_budget->parsed()) return run_budget_command(bud, std::cout, std::cerr);
     } catch (const InputError& e) {
         std::cerr << "wayward: " << e.what() << "\n";
         return 2;
