@@ -433,19 +433,6 @@ std::vector<CaseRow> read_case_rows(const std::string& path) {
 
 namespace {
 
-void ellipse_axes(double cll, double clb, double cbb, double& major, double& minor, double& orientation_deg) {
-    Eigen::Matrix2d c;
-    c << cll, clb, clb, cbb;
-    Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> es(c);
-    const Eigen::Vector2d ev = es.eigenvalues().cwiseMax(0.0);
-    major = std::sqrt(ev[1]);
-    minor = std::sqrt(ev[0]);
-    const Eigen::Vector2d u = es.eigenvectors().col(1);
-    double ang = std::atan2(u[1], u[0]) / deg;
-    if (ang < 0) ang += 180.0;
-    if (ang >= 180.0) ang -= 180.0;
-    orientation_deg = ang;
-}
 
 }  // namespace
 

@@ -163,6 +163,9 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     IntegratorOptions io;
     io.rel_tol = setup.options.rel_tol;
     io.central_quadrupole = setup.pair_quadrupole;
+    // A trial orbit that runs into a close encounter must fail fast (the fit then rejects the step), not fill
+    // memory with dense output: ordinary model runs take a few thousand steps.
+    io.max_steps = 200'000;
     const double t0 = t_begin.value_or(setup.t_begin);
     IntegrationResult r = integrate(sys, t0, std::max(t_end, t0), io);
     if (r.outcome != IntegrationOutcome::ok) {

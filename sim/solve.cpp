@@ -152,7 +152,18 @@ Eigen::MatrixXd normal_inverse(const Eigen::MatrixXd& J) {
     return svd.matrixV() * inv.asDiagonal() * svd.matrixV().transpose();
 }
 
-void ellipse_of(double cll, double clb, double cbb, double& major, double& minor, double& orientation_deg) {
+double epoch_days(const Brief& b, double year) { return days_from_year(b.epoch0_year, year); }
+
+void check_epoch(const Exercise& ex, double year) {
+    const double lo = ex.brief.epoch0_year, hi = ex.brief.epoch0_year + ex.brief.span_years;
+    if (!(year >= lo && year <= hi))
+        throw InputError("", 0, "--epoch", "the epoch " + std::to_string(year) + " lies outside the exercise's integrable span (" +
+                                             std::to_string(lo) + " to " + std::to_string(hi) + ")");
+}
+
+}  // namespace
+
+void ellipse_axes(double cll, double clb, double cbb, double& major, double& minor, double& orientation_deg) {
     Eigen::Matrix2d c;
     c << cll, clb, clb, cbb;
     Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> es(c);
@@ -165,17 +176,6 @@ void ellipse_of(double cll, double clb, double cbb, double& major, double& minor
     if (ang >= 180.0) ang -= 180.0;
     orientation_deg = ang;
 }
-
-double epoch_days(const Brief& b, double year) { return days_from_year(b.epoch0_year, year); }
-
-void check_epoch(const Exercise& ex, double year) {
-    const double lo = ex.brief.epoch0_year, hi = ex.brief.epoch0_year + ex.brief.span_years;
-    if (!(year >= lo && year <= hi))
-        throw InputError("", 0, "--epoch", "the epoch " + std::to_string(year) + " lies outside the exercise's integrable span (" +
-                                             std::to_string(lo) + " to " + std::to_string(hi) + ")");
-}
-
-}  // namespace
 
 Prediction predict_position(const ModelSetup& setup, const ModelState& state, double epoch_year, double track_years,
                             double track_step_years) {
@@ -471,7 +471,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     pr.cov_ll = sky_cov(0, 0);
     pr.cov_lb = sky_cov(0, 1);
     pr.cov_bb = sky_cov(1, 1);
-    ellipse_of(pr.cov_ll, pr.cov_lb, pr.cov_bb, pr.semi_major_arcsec, pr.semi_minor_arcsec, pr.orientation_deg);
+    ellipse_axes(pr.cov_ll, pr.cov_lb, pr.cov_bb, pr.semi_major_arcsec, pr.semi_minor_arcsec, pr.orientation_deg);
 
     // ---- prediction: sampling the covariance ----
     report("sampling the covariance", 0.86);
@@ -506,7 +506,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
         pr.radius90_arcsec = radii[std::min(radii.size() - 1, static_cast<std::size_t>(std::ceil(0.9 * static_cast<double>(radii.size()))) - 1)];
         const double n = static_cast<double>(radii.size());
         double o_unused = 0;
-        ellipse_of(sll / n, slb / n, sbb / n, pr.sampled_semi_major_arcsec, pr.sampled_semi_minor_arcsec, o_unused);
+        ellipse_axes(sll / n, slb / n, sbb / n, pr.sampled_semi_major_arcsec, pr.sampled_semi_minor_arcsec, o_unused);
     }
     sol.model_runs = runs.load();
     report("done", 1.0);

@@ -107,6 +107,10 @@ Solution solve(const Exercise& ex, const SolveOptions& options, const SolveProgr
 Prediction predict_position(const ModelSetup& setup, const ModelState& state, double epoch_year, double track_years,
                             double track_step_years);
 
+// Semi-axes (sqrt of the eigenvalues) and orientation (major axis, degrees from +lambda towards +beta, in
+// [0, 180)) of the 2x2 covariance [[cll, clb], [clb, cbb]].
+void ellipse_axes(double cll, double clb, double cbb, double& major, double& minor, double& orientation_deg);
+
 // solution.toml
 std::string solution_toml(const Solution& s);
 Solution load_solution(const std::string& path);

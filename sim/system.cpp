@@ -60,29 +60,8 @@ void nbody_derivative(std::size_t n, const double* gm, const double* state, doub
     }
 }
 
-void nbody_jerks(std::size_t n, const double* gm, const double* x, double* jerk) {
-    // d/dt [G m r / r^3] = G m [v / r^3 - 3 (r.v) r / r^5], with r, v the separation and relative velocity.
-    for (std::size_t i = 0; i < 3 * n; ++i) jerk[i] = 0.0;
-    for (std::size_t i = 0; i < n; ++i) {
-        for (std::size_t j = i + 1; j < n; ++j) {
-            double r[3], v[3];
-            for (std::size_t c = 0; c < 3; ++c) {
-                r[c] = x[6 * j + c] - x[6 * i + c];
-                v[c] = x[6 * j + 3 + c] - x[6 * i + 3 + c];
-            }
-            const double r2 = r[0] * r[0] + r[1] * r[1] + r[2] * r[2];
-            const double inv_r3 = 1.0 / (r2 * std::sqrt(r2));
-            const double rv = 3.0 * (r[0] * v[0] + r[1] * v[1] + r[2] * v[2]) / r2;
-            for (std::size_t c = 0; c < 3; ++c) {
-                const double term = (v[c] - rv * r[c]) * inv_r3;
-                jerk[3 * i + c] += gm[j] * term;
-                jerk[3 * j + c] -= gm[i] * term;
-            }
-        }
-    }
-}
-
 void nbody_accelerations_and_jerks(std::size_t n, const double* gm, const double* x, double* acc, double* jerk) {
+    // jerk: d/dt [G m r / r^3] = G m [v / r^3 - 3 (r.v) r / r^5], with r, v the separation and relative velocity.
     for (std::size_t i = 0; i < 3 * n; ++i) acc[i] = jerk[i] = 0.0;
     for (std::size_t i = 0; i < n; ++i) {
         for (std::size_t j = i + 1; j < n; ++j) {

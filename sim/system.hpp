@@ -38,9 +38,8 @@ void nbody_accelerations(std::size_t n, const double* gm, const double* pos, dou
 // d/dt of a 6-per-body state (the form Odeint integrates).
 void nbody_derivative(std::size_t n, const double* gm, const double* state, double* dstate);
 
-// Jerks (time derivatives of the Newtonian accelerations) of a 6-per-body state: 3 per body.
-void nbody_jerks(std::size_t n, const double* gm, const double* state, double* jerk);
-// Accelerations and jerks together (one pass over the pairs), from a 6-per-body state.
+// Accelerations and their time derivatives (jerks) in one pass over the pairs, from a 6-per-body state;
+// 3 per body each.
 void nbody_accelerations_and_jerks(std::size_t n, const double* gm, const double* state, double* acc, double* jerk);
 
 double total_energy(const System& s);          // kinetic + potential, per unit G (au^5/d^4 * Msun/G ...)
