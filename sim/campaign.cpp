@@ -274,18 +274,6 @@ const std::string& campaign_csv_header() {
 namespace {
 constexpr std::size_t kColumns = 26;
 
-std::vector<std::string> split_csv(const std::string& line) {
-    std::vector<std::string> cells;
-    std::size_t start = 0;
-    for (;;) {
-        const std::size_t comma = line.find(',', start);
-        cells.push_back(line.substr(start, comma == std::string::npos ? std::string::npos : comma - start));
-        if (comma == std::string::npos) break;
-        start = comma + 1;
-    }
-    return cells;
-}
-
 std::string clean_note(std::string s) {
     for (char& c : s)
         if (c == ',' || c == '"' || c == '\n' || c == '\r') c = ';';
@@ -329,11 +317,11 @@ std::string format_case_row(const CaseRow& r) {
 }
 
 CaseRow parse_case_row(const std::string& line, const std::string& file, long n) {
-    const std::vector<std::string> c = split_csv(line);
+    const std::vector<std::string> c = split_csv_line(line);
     if (c.size() != kColumns)
         throw InputError(file, n, "", "a damaged row: " + std::to_string(c.size()) + " cells where " + std::to_string(kColumns) +
                                           " belong (delete the line to have that case run again)");
-    static const std::vector<std::string> names = split_csv(campaign_csv_header());
+    static const std::vector<std::string> names = split_csv_line(campaign_csv_header());
     auto number = [&](std::size_t k, bool required) {
         if (c[k].empty()) {
             if (required) throw InputError(file, n, names[k], "is empty");

@@ -327,14 +327,7 @@ std::vector<Observation> parse_observations_csv(const std::string& text, const s
             continue;
         }
         if (line.empty()) continue;
-        std::vector<std::string> cells;
-        std::size_t start = 0;
-        for (;;) {
-            const std::size_t comma = line.find(',', start);
-            cells.push_back(line.substr(start, comma == std::string::npos ? std::string::npos : comma - start));
-            if (comma == std::string::npos) break;
-            start = comma + 1;
-        }
+        const std::vector<std::string> cells = split_csv_line(line);
         if (cells.size() != 8)
             throw InputError(file, row, "row", "expected 8 columns, found " + std::to_string(cells.size()));
         auto number = [&](std::size_t c, bool optional) -> std::optional<double> {

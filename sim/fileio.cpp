@@ -47,4 +47,16 @@ void write_file_atomic(const std::string& path, const std::string& content) {
     commit_file(tmp, path);
 }
 
+std::vector<std::string> split_csv_line(const std::string& line) {
+    std::vector<std::string> cells;
+    std::size_t start = 0;
+    for (;;) {
+        const std::size_t comma = line.find(',', start);
+        cells.push_back(line.substr(start, comma == std::string::npos ? std::string::npos : comma - start));
+        if (comma == std::string::npos) break;
+        start = comma + 1;
+    }
+    return cells;
+}
+
 }  // namespace wayward

@@ -3,6 +3,7 @@
 #pragma once
 
 #include <string>
+#include <vector>
 
 namespace wayward {
 
@@ -12,5 +13,8 @@ void write_file_atomic(const std::string& path, const std::string& content);
 std::string temporary_path_for(const std::string& path);
 // Renames `from` onto `to` (atomic on one filesystem); removes `from` and throws on failure.
 void commit_file(const std::string& from, const std::string& to);
+
+// The cells of one line of a plain CSV table (our tables quote nothing, so a comma always separates).
+std::vector<std::string> split_csv_line(const std::string& line);
 
 }  // namespace wayward
