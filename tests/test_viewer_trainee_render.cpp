@@ -17,35 +17,20 @@
 #include <unistd.h>
 
 #include "test_helpers.hpp"
+#include "viewer_shots.hpp"
 
 namespace {
 
 namespace fs = std::filesystem;
 
+using wayward::testing::Shot;
+
 const fs::path& shot_dir() {
-    static const fs::path dir = [] {
-        fs::path d = fs::temp_directory_path() / ("wayward-viewer-trainee-render-" + std::to_string(::getpid()));
-        fs::remove_all(d);
-        fs::create_directories(d);
-        return d;
-    }();
+    static const fs::path dir = wayward::testing::fresh_shot_dir("wayward-viewer-trainee-render");
     return dir;
 }
 
-struct Shot {
-    wayward::testing::CommandResult run;
-    sf::Image image;
-    bool loaded = false;
-};
-
-Shot screenshot(const std::string& args, const std::string& name) {
-    const fs::path png = shot_dir() / name;
-    fs::remove(png);
-    Shot s;
-    s.run = wayward::testing::run_command(std::string(WAYWARD_VIEW) + " " + args + " --screenshot " + png.string());
-    s.loaded = fs::exists(png) && s.image.loadFromFile(png.string());
-    return s;
-}
+Shot screenshot(const std::string& args, const std::string& name) { return wayward::testing::take_screenshot(shot_dir(), args, name); }
 
 std::string make_exercise(const std::string& name) {
     const fs::path dir = shot_dir() / name;
