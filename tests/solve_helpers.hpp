@@ -3,9 +3,10 @@
 
 #include <string>
 
-#include "sim/exercise.hpp"
-#include "sim/observe.hpp"
-#include "sim/scenario.hpp"
+#include "sim/exercise/exercise.hpp"
+#include "sim/truth/exercise_writer.hpp"
+#include "sim/truth/observe.hpp"
+#include "sim/scenario/scenario.hpp"
 
 namespace wayward::testing {
 

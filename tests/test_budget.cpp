@@ -7,10 +7,10 @@
 #include <cmath>
 #include <filesystem>
 
-#include "sim/budget.hpp"
-#include "sim/errors.hpp"
-#include "sim/generate.hpp"
-#include "sim/observe.hpp"
+#include "sim/budget/budget.hpp"
+#include "sim/base/errors.hpp"
+#include "sim/truth/generate.hpp"
+#include "sim/truth/observe.hpp"
 #include "test_helpers.hpp"
 
 using namespace wayward;

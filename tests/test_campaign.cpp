@@ -10,11 +10,12 @@
 #include <set>
 #include <sstream>
 
-#include "sim/campaign.hpp"
-#include "sim/errors.hpp"
-#include "sim/exercise.hpp"
-#include "sim/observe.hpp"
-#include "sim/units.hpp"
+#include "sim/campaign/campaign.hpp"
+#include "sim/base/errors.hpp"
+#include "sim/exercise/exercise.hpp"
+#include "sim/truth/exercise_writer.hpp"
+#include "sim/truth/observe.hpp"
+#include "sim/base/units.hpp"
 #include "test_helpers.hpp"
 
 using namespace wayward;

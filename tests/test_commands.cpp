@@ -8,10 +8,11 @@
 #include <fstream>
 #include <sstream>
 
-#include "sim/commands.hpp"
-#include "sim/exercise.hpp"
-#include "sim/score.hpp"
-#include "sim/units.hpp"
+#include "sim/commands/commands.hpp"
+#include "sim/exercise/exercise.hpp"
+#include "sim/truth/exercise_writer.hpp"
+#include "sim/score/score.hpp"
+#include "sim/base/units.hpp"
 #include "test_helpers.hpp"
 
 using namespace wayward;

@@ -3,9 +3,9 @@
 
 #include <cmath>
 
-#include "sim/elements.hpp"
-#include "sim/random.hpp"
-#include "sim/units.hpp"
+#include "sim/physics/elements.hpp"
+#include "sim/base/random.hpp"
+#include "sim/base/units.hpp"
 
 using namespace wayward;
 

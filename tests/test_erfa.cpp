@@ -6,10 +6,10 @@
 
 #include <erfa.h>
 
-#include "sim/generate.hpp"
-#include "sim/geometry.hpp"
-#include "sim/integrate.hpp"
-#include "sim/units.hpp"
+#include "sim/truth/generate.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/physics/integrate.hpp"
+#include "sim/base/units.hpp"
 
 using namespace wayward;
 

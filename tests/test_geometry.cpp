@@ -3,9 +3,9 @@
 
 #include <cmath>
 
-#include "sim/generate.hpp"
-#include "sim/geometry.hpp"
-#include "sim/units.hpp"
+#include "sim/truth/generate.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/base/units.hpp"
 #include "test_helpers.hpp"
 
 using namespace wayward;

@@ -8,9 +8,9 @@
 
 #include <boost/numeric/odeint.hpp>
 
-#include "sim/generate.hpp"
-#include "sim/integrate.hpp"
-#include "sim/units.hpp"
+#include "sim/truth/generate.hpp"
+#include "sim/physics/integrate.hpp"
+#include "sim/base/units.hpp"
 #include "test_helpers.hpp"
 
 using namespace wayward;

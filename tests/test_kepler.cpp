@@ -3,10 +3,10 @@
 
 #include <cmath>
 
-#include "sim/elements.hpp"
-#include "sim/generate.hpp"
-#include "sim/random.hpp"
-#include "sim/units.hpp"
+#include "sim/physics/elements.hpp"
+#include "sim/truth/generate.hpp"
+#include "sim/base/random.hpp"
+#include "sim/base/units.hpp"
 
 using namespace wayward;
 

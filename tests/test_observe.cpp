@@ -8,12 +8,13 @@
 #include <map>
 #include <sstream>
 
-#include "sim/commands.hpp"
-#include "sim/errors.hpp"
-#include "sim/exercise.hpp"
-#include "sim/hash.hpp"
-#include "sim/observe.hpp"
-#include "sim/units.hpp"
+#include "sim/commands/commands.hpp"
+#include "sim/base/errors.hpp"
+#include "sim/exercise/exercise.hpp"
+#include "sim/truth/exercise_writer.hpp"
+#include "sim/io/hash.hpp"
+#include "sim/truth/observe.hpp"
+#include "sim/base/units.hpp"
 #include "test_helpers.hpp"
 
 using namespace wayward;

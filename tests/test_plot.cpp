@@ -15,7 +15,7 @@
 #include <string>
 #include <vector>
 
-#include "sim/plot.hpp"
+#include "sim/report/plot.hpp"
 
 using namespace wayward::plot;
 

@@ -4,9 +4,9 @@
 #include <cmath>
 #include <string>
 
-#include "sim/errors.hpp"
-#include "sim/generate.hpp"
-#include "sim/scenario.hpp"
+#include "sim/base/errors.hpp"
+#include "sim/truth/generate.hpp"
+#include "sim/scenario/scenario.hpp"
 #include "test_helpers.hpp"
 
 using namespace wayward;

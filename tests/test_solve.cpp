@@ -6,12 +6,12 @@
 #include <cmath>
 #include <mutex>
 
-#include "sim/fit.hpp"
-#include "sim/parallel.hpp"
-#include "sim/score.hpp"
-#include "sim/solve.hpp"
-#include "sim/toml_reader.hpp"
-#include "sim/units.hpp"
+#include "sim/fit/known_fit.hpp"
+#include "sim/base/parallel.hpp"
+#include "sim/score/score.hpp"
+#include "sim/solve/solve.hpp"
+#include "sim/io/toml_reader.hpp"
+#include "sim/base/units.hpp"
 #include "solve_helpers.hpp"
 #include "test_helpers.hpp"
 

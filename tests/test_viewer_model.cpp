@@ -9,9 +9,9 @@
 
 #include <SFML/Window/Event.hpp>
 
-#include "sim/geometry.hpp"
-#include "sim/starfield.hpp"
-#include "sim/units.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/search/starfield.hpp"
+#include "sim/base/units.hpp"
 #include "test_helpers.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/fonts.hpp"

@@ -17,13 +17,14 @@
 
 #include <unistd.h>
 
-#include "sim/exercise.hpp"
-#include "sim/fit.hpp"
-#include "sim/geometry.hpp"
-#include "sim/report.hpp"
-#include "sim/score.hpp"
-#include "sim/solve.hpp"
-#include "sim/units.hpp"
+#include "sim/exercise/exercise.hpp"
+#include "sim/truth/exercise_writer.hpp"
+#include "sim/fit/known_fit.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/report/report.hpp"
+#include "sim/score/score.hpp"
+#include "sim/solve/solve.hpp"
+#include "sim/base/units.hpp"
 #include "test_helpers.hpp"
 #include "viewer/analysis.hpp"
 #include "viewer/model.hpp"

@@ -8,9 +8,9 @@
 #include <limits>
 #include <thread>
 
-#include "sim/errors.hpp"
-#include "sim/fileio.hpp"
-#include "sim/units.hpp"
+#include "sim/base/errors.hpp"
+#include "sim/io/fileio.hpp"
+#include "sim/base/units.hpp"
 
 namespace wayward::viewer {
 

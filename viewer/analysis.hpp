@@ -13,10 +13,10 @@
 #include <string>
 #include <vector>
 
-#include "sim/commands.hpp"
-#include "sim/fit.hpp"
-#include "sim/score.hpp"
-#include "sim/solve.hpp"
+#include "sim/commands/commands.hpp"
+#include "sim/fit/known_fit.hpp"
+#include "sim/score/score.hpp"
+#include "sim/solve/solve.hpp"
 #include "viewer/controls.hpp"
 #include "viewer/jobs.hpp"
 #include "viewer/model.hpp"

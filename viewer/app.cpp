@@ -15,7 +15,7 @@
 
 #include <imgui.h>
 
-#include "sim/units.hpp"
+#include "sim/base/units.hpp"
 #include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/controls.hpp"

@@ -7,9 +7,9 @@
 #include <filesystem>
 #include <limits>
 
-#include "sim/elements.hpp"
-#include "sim/errors.hpp"
-#include "sim/units.hpp"
+#include "sim/physics/elements.hpp"
+#include "sim/base/errors.hpp"
+#include "sim/base/units.hpp"
 #include "viewer/analysis.hpp"
 
 namespace wayward::viewer {

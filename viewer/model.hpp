@@ -13,11 +13,12 @@
 #include <string>
 #include <vector>
 
-#include "sim/exercise.hpp"
-#include "sim/generate.hpp"
-#include "sim/geometry.hpp"
-#include "sim/scenario.hpp"
-#include "sim/starfield.hpp"
+#include "sim/exercise/exercise.hpp"
+#include "sim/truth/exercise_writer.hpp"
+#include "sim/truth/generate.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/scenario/scenario.hpp"
+#include "sim/search/starfield.hpp"
 
 namespace wayward::viewer {
 

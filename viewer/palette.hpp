@@ -8,7 +8,7 @@
 
 #include <imgui.h>
 
-#include "sim/system.hpp"
+#include "sim/physics/system.hpp"
 
 namespace wayward::viewer::palette {
 

@@ -7,7 +7,7 @@
 #include <cstdint>
 #include <cstdio>
 
-#include "sim/units.hpp"
+#include "sim/base/units.hpp"
 #include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/draw_util.hpp"

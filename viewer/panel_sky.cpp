@@ -8,8 +8,8 @@
 #include <cmath>
 #include <cstdio>
 
-#include "sim/geometry.hpp"
-#include "sim/units.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/base/units.hpp"
 #include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/draw_util.hpp"

@@ -9,7 +9,7 @@
 #include <cstdio>
 #include <filesystem>
 
-#include "sim/units.hpp"
+#include "sim/base/units.hpp"
 #include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/draw_util.hpp"

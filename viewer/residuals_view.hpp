@@ -12,7 +12,7 @@
 
 #include <imgui.h>
 
-#include "sim/fit.hpp"
+#include "sim/fit/known_fit.hpp"
 #include "viewer/plot_widgets.hpp"
 
 namespace wayward::viewer {

@@ -7,9 +7,9 @@
 
 #include <SFML/Graphics/Sprite.hpp>
 
-#include "sim/geometry.hpp"
-#include "sim/starfield.hpp"
-#include "sim/units.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/search/starfield.hpp"
+#include "sim/base/units.hpp"
 #include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/palette.hpp"

@@ -18,7 +18,7 @@
 
 #include <imgui.h>
 
-#include "sim/solve.hpp"
+#include "sim/solve/solve.hpp"
 #include "viewer/controls.hpp"
 #include "viewer/draw_util.hpp"
 #include "viewer/model.hpp"

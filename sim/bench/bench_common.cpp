@@ -8,10 +8,10 @@
 #include <mutex>
 #include <utility>
 
-#include "sim/generate.hpp"
-#include "sim/observe.hpp"
-#include "sim/system.hpp"
-#include "sim/units.hpp"
+#include "sim/truth/generate.hpp"
+#include "sim/truth/observe.hpp"
+#include "sim/physics/system.hpp"
+#include "sim/base/units.hpp"
 
 namespace wayward::bench {
 

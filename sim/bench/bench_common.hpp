@@ -5,9 +5,10 @@
 #include <cstdint>
 #include <string>
 
-#include "sim/exercise.hpp"
-#include "sim/integrate.hpp"
-#include "sim/scenario.hpp"
+#include "sim/exercise/exercise.hpp"
+#include "sim/truth/exercise_writer.hpp"
+#include "sim/physics/integrate.hpp"
+#include "sim/scenario/scenario.hpp"
 
 namespace wayward::bench {
 

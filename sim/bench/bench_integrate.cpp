@@ -17,9 +17,9 @@
 #include <boost/numeric/odeint/stepper/runge_kutta_fehlberg78.hpp>
 
 #include "sim/bench/bench_common.hpp"
-#include "sim/integrate.hpp"
-#include "sim/system.hpp"
-#include "sim/units.hpp"
+#include "sim/physics/integrate.hpp"
+#include "sim/physics/system.hpp"
+#include "sim/base/units.hpp"
 
 namespace wayward::bench {
 

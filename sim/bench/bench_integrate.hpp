@@ -4,7 +4,7 @@
 
 #include <string>
 
-#include "sim/integrate.hpp"
+#include "sim/physics/integrate.hpp"
 
 namespace wayward::bench {
 

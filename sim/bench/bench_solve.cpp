@@ -12,9 +12,9 @@
 #include <benchmark/benchmark.h>
 
 #include "sim/bench/bench_common.hpp"
-#include "sim/fit.hpp"
-#include "sim/solve.hpp"
-#include "sim/units.hpp"
+#include "sim/fit/known_fit.hpp"
+#include "sim/solve/solve.hpp"
+#include "sim/base/units.hpp"
 
 namespace wayward::bench {
 

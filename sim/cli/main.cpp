@@ -5,8 +5,8 @@
 
 #include <CLI/CLI.hpp>
 
-#include "sim/commands.hpp"
-#include "sim/errors.hpp"
+#include "sim/commands/commands.hpp"
+#include "sim/base/errors.hpp"
 
 int main(int argc, char** argv) {
     using namespace wayward;

@@ -1,0 +1,177 @@
+// Campaigns: many exercises run and scored in memory, to measure how often a team's method finds the hidden body.
+//
+// A campaign spec (TOML) names scenarios, a number of seeds, a campaign seed, named solve settings and search
+// epochs. One case = (scenario, seed, settings, epoch). Work is shared: each system (scenario, seed) is generated
+// and observed once, each unit (scenario, seed, settings) is solved once, and the unit's solution is predicted at
+// every epoch from one set of model runs (predict_at_epochs). Each finished unit appends its rows to DIR/cases.csv
+// with a single write() call, so a killed run leaves only whole rows and resumes where it stopped; a manifest
+// (DIR/manifest.toml) names the campaign (SHA-256 of the spec and its scenario files) and the shard. Sharding
+// splits the units, `merge` joins the shards. The report: summary.txt and PNG plots (success rate against epoch
+// with bootstrap bands, separations, luck fractions, epoch of closest agreement).
+//
+// Determinism: a system's seed comes from (campaign seed, scenario name, seed number) through derive_seed, and is
+// the seed that `wayward new` takes to make the same exercise; the covariance samples' seed from (system seed,
+// settings name). Solves run single-threaded inside the campaign's worker threads, so rows depend neither on the
+// thread count nor on the shard or the order. Units: years, arcmin, au, solar masses.
+#pragma once
+
+#include <atomic>
+#include <cstdint>
+#include <optional>
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "sim/exercise/exercise.hpp"
+#include "sim/scenario/scenario.hpp"
+#include "sim/solve/solve.hpp"
+
+namespace wayward {
+
+struct CampaignScenario {
+    std::string name;                 // label in the table (letters, digits, - _ .)
+    std::string path;                 // as resolved from the spec's folder
+    long line = 0;                    // of its [[scenario]] table in the spec
+    Scenario scenario;
+    std::string sha256;               // of the scenario file's text (part of the campaign's identity)
+    double search_epoch_year = 0.0;   // the scenario's first search epoch (offsets count from it)
+    std::vector<double> epochs_year;  // the campaign's epochs for this scenario, in spec order
+};
+
+struct CampaignSettings {
+    std::string name;
+    long line = 0;
+    SolveOptions options;             // as `wayward solve` would build them (threads and seed set per unit)
+};
+
+struct CampaignSpec {
+    std::string file;                 // the spec's path (for messages)
+    std::string text;                 // its content
+    std::string name;
+    std::string id;                   // SHA-256 of the spec text and every scenario file's text, in order
+    std::uint64_t seed = 1;           // campaign seed
+    std::size_t seeds = 0;            // systems per scenario
+    double window_years = 60.0;       // half-window of the luck curve
+    bool epochs_are_offsets = true;   // epochs given as offsets from each scenario's search epoch, else as years
+    std::vector<double> epochs;       // as given (offsets in years, or years)
+    std::vector<CampaignScenario> scenarios;
+    std::vector<CampaignSettings> settings;
+
+    std::size_t systems() const { return scenarios.size() * seeds; }
+    std::size_t units() const { return systems() * settings.size(); }
+    std::size_t cases() const { return units() * epochs.size(); }
+};
+
+// Reads and validates a spec and every scenario it names; throws InputError naming file, line and field.
+CampaignSpec load_campaign_spec(const std::string& path);
+// The same from text; scenario paths are taken relative to `base_dir`.
+CampaignSpec parse_campaign_spec(const std::string& text, const std::string& file, const std::string& base_dir);
+
+// Case numbering: case = ((scenario * seeds + seed_index) * settings + settings_index) * epochs + epoch_index;
+// unit = case / epochs (one solve); system = unit / settings (one generated exercise).
+struct CaseKey {
+    std::size_t scenario = 0, seed_index = 0, settings = 0, epoch = 0;
+};
+CaseKey case_key(const CampaignSpec& spec, std::size_t case_index);
+std::size_t case_index(const CampaignSpec& spec, const CaseKey& key);
+// The seed of system (scenario, seed number): what `wayward new SCENARIO --seed S` takes to make the same exercise.
+std::uint64_t campaign_system_seed(const CampaignSpec& spec, std::size_t scenario, std::size_t seed_index);
+
+// Shard K of N holds the units u with u % N == K - 1 (all epochs of a unit stay together: one solve).
+struct Shard {
+    std::size_t index = 1, count = 1;
+    bool holds_unit(std::size_t unit) const { return unit % count == index - 1; }
+    std::string text() const { return std::to_string(index) + "/" + std::to_string(count); }
+};
+Shard parse_shard(const std::string& text);  // "K/N" with 1 <= K <= N; InputError naming --shard otherwise
+
+// One row of cases.csv.
+struct CaseRow {
+    std::size_t index = 0;
+    std::string scenario;
+    std::uint64_t seed = 0;
+    std::string settings;
+    double epoch_year = 0.0;
+    double epoch_offset_years = 0.0;          // from the scenario's search epoch
+    bool ok = true;                           // false: the case failed (note says why); it counts as a miss
+    double separation_arcmin = NAN;
+    double field_radius_arcmin = 0.0;
+    bool hit = false;
+    std::optional<double> mahalanobis;        // from the linear 1-sigma ellipse
+    double radius90_arcmin = NAN;             // radius holding 90% of the covariance samples
+    double luck_fraction = NAN;               // of the luck window inside the field radius
+    double closest_year = NAN, closest_arcmin = NAN;
+    double data_centre_year = NAN;            // sigma-weighted mean time of the kept observations
+    double fitted_a_au = NAN, true_a_au = NAN, fitted_mass = NAN, true_mass = NAN;
+    std::string note;                         // why a case failed (no commas or quotes)
+    double unit_seconds = 0.0;                // wall time of the unit's solve and predictions (not deterministic)
+
+    bool inside_sigma(double k) const { return mahalanobis && *mahalanobis <= k; }
+    bool radius90_holds() const { return ok && separation_arcmin <= radius90_arcmin; }
+    double closest_minus_centre_years() const { return closest_year - data_centre_year; }
+};
+const std::string& campaign_csv_header();
+std::string format_case_row(const CaseRow& row);  // one line with its newline
+CaseRow parse_case_row(const std::string& line, const std::string& file, long line_number);
+// Reads a whole cases.csv (header checked); rows in file order.
+std::vector<CaseRow> read_case_rows(const std::string& path);
+
+// Predictions of a solved hidden body at several epochs from one set of model runs: the best fit integrated once
+// (position and +- track_years track at every epoch), the hidden-body covariance propagated linearly by finite
+// differences (the same steps as solve), and options.samples draws from that covariance, each integrated once and
+// read at every epoch (the radius holding 90% of them, and their ellipse). The observed planets are those of the
+// known-bodies fit corrected for the solved hidden body by two Gauss-Newton steps (test_campaign compares the
+// result with solve's own prediction). data_centre_year receives the sigma-weighted mean observation time.
+std::vector<Prediction> predict_at_epochs(const Exercise& ex, const Solution& sol, const SolveOptions& options,
+                                          const std::vector<double>& epochs_year, double* data_centre_year = nullptr);
+
+struct CampaignRun {
+    std::string out_dir;
+    unsigned threads = 0;                      // units solved at once (0: all cores); each solve uses one thread
+    Shard shard;
+    bool quiet = false;
+    const std::atomic<bool>* cancel = nullptr; // set (e.g. by SIGINT): stop soon, keep every finished row
+};
+struct CampaignOutcome {
+    std::size_t shard_cases = 0;   // cases this shard holds
+    std::size_t resumed = 0;       // found finished in cases.csv
+    std::size_t finished = 0;      // finished in this run
+    std::size_t failed = 0;        // rows with status failed (in the whole shard)
+    bool repaired = false;         // a torn last row was cut off
+    bool complete = false;         // every case of the shard is in cases.csv (then sorted, with the report)
+};
+// Checks the output folder (creates it; refuses a folder holding another campaign or shard, or one in use),
+// then runs every unfinished unit of the shard, then sorts cases.csv and writes the report.
+CampaignOutcome run_campaign(const CampaignSpec& spec, const CampaignRun& run, std::ostream& progress);
+
+// manifest.toml of a campaign folder.
+struct CampaignManifest {
+    std::string name, id, spec_file, spec_text;
+    Shard shard;
+    std::size_t cases = 0, units = 0, epochs = 0;
+    bool epochs_are_offsets = true;
+    std::vector<std::string> merged_from;
+};
+CampaignManifest load_campaign_manifest(const std::string& dir);
+
+// Joins shard folders of one campaign into `out_dir` (cases.csv sorted, manifest as shard 1/1, report). Refuses
+// (InputError) folders of different campaigns, and lists missing and doubled cases.
+void merge_campaigns(const std::vector<std::string>& dirs, const std::string& out_dir, std::ostream& out);
+
+// summary.txt, success_vs_epoch.png, separations.png, luck_fraction.png, closest_agreement.png in `dir`.
+// Returns the summary text.
+std::string write_campaign_report(const std::vector<CaseRow>& rows, const CampaignManifest& manifest, const std::string& dir);
+
+// Caps this process's address space (setrlimit RLIMIT_AS) at what is mapped now plus `gigabytes`, or by default
+// plus 1 GB + 0.5 GB per thread (at most 80% of physical memory), so that one model run that goes astray fails its
+// case with std::bad_alloc instead of taking the machine down; 0 leaves the limit alone. Returns the limit set
+// (bytes, 0: none).
+std::uint64_t limit_memory(double gigabytes, unsigned threads);
+
+// Percentile bootstrap interval of a success rate (resampling the cases), deterministic for a given seed.
+struct RateInterval {
+    double rate = 0.0, lo = 0.0, hi = 0.0;
+};
+RateInterval bootstrap_rate(const std::vector<bool>& hits, int resamples, double level, std::uint64_t seed);
+
+}  // namespace wayward

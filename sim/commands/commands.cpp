@@ -1,0 +1,374 @@
+// Implementations of the `wayward` commands.
+#include "sim/commands/commands.hpp"
+
+#include <cmath>
+#include <filesystem>
+#include <iomanip>
+#include <map>
+#include <sstream>
+
+#include "sim/base/errors.hpp"
+#include "sim/exercise/exercise.hpp"
+#include "sim/truth/exercise_writer.hpp"
+#include "sim/io/fileio.hpp"
+#include "sim/fit/known_fit.hpp"
+#include "sim/report/report.hpp"
+#include "sim/truth/generate.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/base/units.hpp"
+
+namespace wayward {
+
+int run_ephemeris(const EphemerisArgs& args, std::ostream& out) {
+    const Scenario sc = load_scenario(args.scenario);
+    IntegratorOptions opt;
+    opt.method = args.method;
+    bool known_method = false;
+    for (const auto& m : integrator_methods()) known_method |= m.name == args.method;
+    if (!known_method) throw InputError("", 0, "--method", "unknown integration method '" + args.method + "'");
+    const double span = sc.span_years * julian_year_days;
+    for (double t : args.days)
+        if (!(t >= 0.0 && t <= span) || !std::isfinite(t))
+            throw InputError("", 0, "--at", "time " + std::to_string(t) + " d is outside the scenario's span [0, " +
+                                                std::to_string(span) + "] d");
+    IntegrationResult run;
+    const Truth truth = generate(sc, args.seed, &run, opt);
+    const Ephemeris& eph = run.ephemeris;
+    const std::size_t obs = truth.system.observer_index();
+    const ObserverFrame frame = observer_frame(truth.system, obs);
+
+    out << "time_days,year,body,x_au,y_au,z_au,vx_au_per_day,vy_au_per_day,vz_au_per_day,lon_deg,lat_deg,distance_au\n";
+    out << std::setprecision(15);
+    for (double t : args.days) {
+        for (std::size_t i = 0; i < eph.size(); ++i) {
+            const StateVector s = eph.state(i, t);
+            out << t << ',' << std::setprecision(10) << decimal_year(sc.epoch0_year, t) << std::setprecision(15) << ','
+                << eph.bodies[i].name;
+            for (int c = 0; c < 3; ++c) out << ',' << s.position[c];
+            for (int c = 0; c < 3; ++c) out << ',' << s.velocity[c];
+            if (i == obs) {
+                out << ",,,\n";
+            } else {
+                const Apparent a = apparent(eph, frame, obs, i, t);
+                out << ',' << a.sky.lon / deg << ',' << a.sky.lat / deg << ',' << a.sky.distance << '\n';
+            }
+        }
+    }
+    return 0;
+}
+
+}  // namespace wayward
+
+namespace wayward {
+
+int run_new(const NewArgs& args, std::ostream& out) {
+    const Scenario sc = load_scenario(args.scenario);
+    if (!sc.plan.present) throw InputError(sc.file, 0, "observing", "the scenario has no [observing] plan, so there is nothing to observe");
+    if (args.out_dir.empty()) throw InputError("", 0, "--out", "is required");
+    const ExercisePaths paths = exercise_paths(args.out_dir, args.key_dir);
+    if (std::filesystem::exists(paths.brief()) && !args.force)
+        throw InputError(paths.dir, 0, "--out", "an exercise already exists here; use --force to overwrite it");
+    IntegrationResult run;
+    const Truth truth = generate(sc, args.seed, &run);
+    const ObservationSet obs = observe(sc, truth, run.ephemeris, args.seed);
+    const Brief brief = make_brief(sc, truth, args.seed);
+    write_exercise(paths, sc, truth, obs, brief, run.ephemeris, args.force);
+
+    out << std::defaultfloat << std::setprecision(6);
+    out << "Exercise written to " << paths.dir << " (answer key sealed in " << paths.key_dir << ")\n";
+    out << "Scenario: " << sc.name << ", seed " << args.seed << (truth.draws > 1 ? ", accepted on draw " + std::to_string(truth.draws) : "") << "\n";
+    out << "Span: " << sc.epoch0_year << " to " << sc.epoch0_year + sc.span_years << " (" << sc.span_years << " years)\n";
+    out << "Star: " << truth.system.bodies[0].name << ", " << truth.star_mass << " solar masses\n";
+    out << "Known planets:\n";
+    for (const BriefPlanet& p : brief.planets)
+        out << "  " << std::left << std::setw(12) << p.name << " a = " << std::setprecision(4) << p.elements.semi_major_axis
+            << " au, mass " << std::setprecision(3) << p.mass << (p.observer ? "  (observer)" : p.observed ? "  (observed)" : "") << "\n";
+    out << std::setprecision(6);
+    out << "A hidden body is in the system; its orbit and mass are in the sealed answer key.\n";
+    std::map<std::string, std::size_t> per_era;
+    for (const Observation& o : obs.records) ++per_era[o.era];
+    out << "Eras:\n";
+    for (const Era& e : sc.plan.eras)
+        out << "  " << std::setw(18) << e.label << " " << std::setprecision(1) << std::fixed << e.start_year << "-" << e.end_year
+            << std::defaultfloat << std::setprecision(6) << ": " << per_era[e.label]
+            << " observations" << (e.records_sigma ? "" : " (sigma not recorded)") << "\n";
+    if (per_era.count("early sighting")) out << "  " << std::setw(18) << "early sighting" << " " << per_era["early sighting"] << " observations\n";
+    out << "Observations: " << obs.records.size() << " in total\n";
+    out << "Search epoch(s):";
+    for (double y : sc.plan.search_epochs_year) out << " " << y;
+    out << "; field radius " << sc.plan.field_radius_deg << " deg\n";
+    return 0;
+}
+
+}  // namespace wayward
+
+namespace wayward {
+
+int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& progress) {
+    const Exercise ex = load_exercise(args.dir);
+    ModelOptions mo;
+    if (args.neglect_light_time) mo.light_time = LightTime::neglected;
+    const KnownFit fit = fit_known(ex, mo, [&](const std::string& line) { progress << line << "\n" << std::flush; });
+    write_file_atomic(args.dir + "/residuals.csv", residuals_csv(fit.setup, fit.residuals));
+    residuals_plot(fit.setup, fit.residuals, args.dir + "/residuals.png",
+                   "O−C of the known-planets-only model: " + ex.brief.scenario_name);
+    out << "Known-planets-only fit of " << fit.setup.planets.size() << " planets to " << fit.setup.obs.size() << " observations ("
+        << fit.rejected << " set aside as outliers)\n";
+    print_residual_summary(fit, out);
+    out << "Wrote " << args.dir << "/residuals.csv and " << args.dir << "/residuals.png\n";
+    return 0;
+}
+
+}  // namespace wayward
+
+#include "sim/base/progress.hpp"
+#include "sim/score/score.hpp"
+#include "sim/io/toml_reader.hpp"
+
+namespace wayward {
+
+SolveOptions solve_options(const SolveArgs& a) {
+    SolveOptions o;
+    const std::string& d = a.distance;
+    auto number = [&](const std::string& text) {
+        char* end = nullptr;
+        const double v = std::strtod(text.c_str(), &end);
+        if (text.empty() || *end != '\0' || !std::isfinite(v))
+            throw InputError("", 0, "--distance", "\"" + text + "\" is not a number (use free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION])");
+        return v;
+    };
+    if (d == "free") {
+        o.distance = DistancePrior::free;
+    } else if (d.rfind("fixed:", 0) == 0) {
+        o.distance = DistancePrior::fixed;
+        o.distance_au = number(d.substr(6));
+        if (!(o.distance_au > 0)) throw InputError("", 0, "--distance", "a fixed distance must be positive");
+    } else if (d.rfind("gauss:", 0) == 0) {
+        o.distance = DistancePrior::gaussian;
+        const std::string rest = d.substr(6);
+        const auto comma = rest.find(',');
+        if (comma == std::string::npos) throw InputError("", 0, "--distance", "gauss needs a mean and a sigma: gauss:A,SIGMA");
+        o.distance_au = number(rest.substr(0, comma));
+        o.distance_sigma_au = number(rest.substr(comma + 1));
+        if (!(o.distance_au > 0 && o.distance_sigma_au > 0)) throw InputError("", 0, "--distance", "mean and sigma must be positive");
+    } else if (d == "spacing" || d.rfind("spacing:", 0) == 0) {
+        o.distance = DistancePrior::spacing;
+        if (d.size() > 8) o.spacing_sigma_fraction = number(d.substr(8));
+        if (!(o.spacing_sigma_fraction > 0 && o.spacing_sigma_fraction < 1))
+            throw InputError("", 0, "--distance", "the spacing prior's sigma fraction must be in (0, 1)");
+    } else {
+        throw InputError("", 0, "--distance", "unknown prior \"" + d + "\" (use free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION])");
+    }
+    o.circular = a.circular;
+    o.coplanar = a.coplanar;
+    if (!(a.ecc_sigma > 0 && a.ecc_sigma < 1)) throw InputError("", 0, "--ecc-sigma", "must be in (0, 1)");
+    if (!(a.tilt_sigma_deg > 0 && a.tilt_sigma_deg < 90)) throw InputError("", 0, "--tilt-sigma", "must be in (0, 90) degrees");
+    o.eccentricity_prior_sigma = a.ecc_sigma;
+    o.inclination_prior_rad = a.tilt_sigma_deg * deg;
+    o.epoch_year = a.epoch_year;
+    if (a.samples < 20 || a.samples > 100000) throw InputError("", 0, "--samples", "must be in [20, 100000]");
+    if (a.starts < 1 || a.starts > 64) throw InputError("", 0, "--starts", "must be in [1, 64]");
+    o.samples = a.samples;
+    o.starts = a.starts;
+    o.threads = a.threads;
+    if (a.neglect_light_time) o.model.light_time = LightTime::neglected;
+    return o;
+}
+
+int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_out) {
+    const SolveOptions o = solve_options(args);
+    const Exercise ex = load_exercise(args.dir);
+    Progress bar(progress_out, args.quiet);
+    SolveProgress sp;
+    sp.report = [&](const std::string& stage, double f) { bar.update(stage, f); };
+    const Solution s = solve(ex, o, sp);
+    bar.finish();
+    write_file_atomic(args.dir + "/solution.toml", solution_toml(s));
+
+    out << std::setprecision(4);
+    out << "Hidden body, " << o.describe() << " (" << s.model_runs << " model runs):\n";
+    out << "  local minima (best first):\n";
+    out << "    " << std::setw(9) << "a (au)" << std::setw(12) << "λ0 (deg)" << std::setw(12) << "mass" << std::setw(8) << "e"
+        << std::setw(12) << "chi2" << "\n";
+    for (const Minimum& m : s.minima)
+        out << "    " << std::setw(9) << m.orbit.semi_major_axis << std::setw(12) << wrap_two_pi(m.orbit.mean_longitude) / deg
+            << std::setw(12) << m.orbit.mass << std::setw(8) << std::hypot(m.orbit.k, m.orbit.h) << std::setw(12)
+            << std::setprecision(8) << m.chi2 << std::setprecision(4) << (m.converged ? "" : "  (not converged)") << "\n";
+    out << "  best: a = " << s.best.semi_major_axis << " +- " << s.distance_sigma_au << " au, mass = " << s.best.mass << " +- "
+        << s.mass_sigma << " solar masses, e = " << std::hypot(s.best.k, s.best.h) << "\n";
+    if (s.spacing_rule_au > 0) out << "  (the spacing rule's next distance is " << s.spacing_rule_au << " au)\n";
+    out << "  mass-distance correlation: " << s.mass_distance_correlation << "\n";
+    out << "  chi2 = " << s.chi2 << " for " << s.dof << " degrees of freedom" << (s.covariance_scaled ? " (covariance scaled by chi2/dof: some eras' sigma was estimated)" : "") << "\n";
+    const Prediction& p = s.prediction;
+    out << std::fixed << std::setprecision(3);
+    out << "Prediction for " << std::setprecision(2) << p.epoch_year << std::setprecision(3) << ": λ = " << p.lon / deg << " deg, β = "
+        << p.lat / deg << " deg, distance " << p.distance_au << " au\n";
+    out << "  1-sigma ellipse (linear): " << p.semi_major_arcsec / 60 << " x " << p.semi_minor_arcsec / 60
+        << " arcmin, major axis at " << std::setprecision(1) << p.orientation_deg << std::setprecision(3) << " deg from +λ towards +β\n";
+    out << "  1-sigma ellipse (" << p.samples_used << " samples): " << p.sampled_semi_major_arcsec / 60 << " x "
+        << p.sampled_semi_minor_arcsec / 60 << " arcmin; 90% of samples within " << p.radius90_arcsec / 60 << " arcmin\n";
+    out << "  search field radius: " << ex.brief.field_radius_deg * 60 << " arcmin\n";
+    out << std::defaultfloat;
+    out << "Wrote " << args.dir << "/solution.toml\n";
+    return 0;
+}
+
+int run_score(const ScoreArgs& args, std::ostream& out) {
+    const Exercise ex = load_exercise(args.dir);
+    Prediction p;
+    std::string source;
+    const bool own = args.lon_deg || args.lat_deg || args.epoch_year;
+    if (own) {
+        if (!(args.lon_deg && args.lat_deg && args.epoch_year))
+            throw InputError("", 0, "--lon", "a prediction of your own needs --lon, --lat and --epoch together");
+        if (!(*args.lat_deg >= -90 && *args.lat_deg <= 90)) throw InputError("", 0, "--lat", "must be in [-90, 90]");
+        p.lon = wrap_two_pi(*args.lon_deg * deg);
+        p.lat = *args.lat_deg * deg;
+        p.epoch_year = *args.epoch_year;
+        source = "your prediction";
+    } else if (!args.prediction_file.empty()) {
+        const toml::table t = detail::parse_toml(detail::read_text_file(args.prediction_file), args.prediction_file);
+        detail::TableReader r(t, args.prediction_file, "");
+        p.lon = wrap_two_pi(r.required_number("lon_deg") * deg);
+        p.lat = r.required_number("lat_deg") * deg;
+        if (!(p.lat >= -pi / 2 && p.lat <= pi / 2)) r.fail("lat_deg", "must be in [-90, 90]");
+        p.epoch_year = r.required_number("epoch_year");
+        r.finish();
+        source = args.prediction_file;
+    } else {
+        const std::string path = args.solution.empty() ? args.dir + "/solution.toml" : args.solution;
+        if (!std::filesystem::exists(path)) throw InputError(path, 0, "", "no solution here: run `wayward solve " + args.dir + "` first, or give --lon --lat --epoch");
+        const Solution s = load_solution(path);
+        if (s.exercise_sha256 != ex.brief.answer_key_sha256)
+            throw InputError(path, 0, "solution.exercise_sha256", "this solution belongs to another exercise");
+        p = s.prediction;
+        source = path;
+    }
+    const std::string key_path = args.key.empty() ? exercise_paths(args.dir).answer_key() : args.key;
+    const AnswerKey key = open_answer_key(ex.brief, key_path);
+    const Score sc = score_prediction(ex.brief, key, p, args.window_years);
+    write_luck(sc, args.dir + "/luck.csv", args.dir + "/luck.png", "Luck of the epoch: " + ex.brief.scenario_name);
+
+    out << std::fixed << std::setprecision(3);
+    out << "Answer key verified (SHA-256 matches the brief). Scoring " << source << ".\n";
+    out << "True position of " << sc.hidden_name << " at " << std::setprecision(2) << sc.epoch_year << std::setprecision(3) << ": λ = "
+        << sc.true_lon / deg << " deg, β = " << sc.true_lat / deg << " deg\n";
+    out << "Predicted: λ = " << sc.predicted_lon / deg << " deg, β = " << sc.predicted_lat / deg << " deg\n";
+    out << "Separation: " << sc.separation_arcmin << " arcmin; field radius " << sc.field_radius_deg * 60 << " arcmin: "
+        << (sc.hit ? "HIT" : "MISS") << "\n";
+    if (sc.mahalanobis) out << "Normalised error (Mahalanobis): " << *sc.mahalanobis << " sigma\n";
+    out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
+        << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "
+        << std::setprecision(3) << sc.closest_arcmin << " arcmin in " << std::setprecision(2) << sc.closest_year << "\n";
+    out << std::defaultfloat << "Wrote " << args.dir << "/luck.csv and " << args.dir << "/luck.png\n";
+    return 0;
+}
+
+}  // namespace wayward
+
+// ---- Campaigns, merge and the error budget ----
+#include <atomic>
+#include <csignal>
+
+#include "sim/budget/budget.hpp"
+#include "sim/campaign/campaign.hpp"
+
+namespace wayward {
+
+namespace {
+std::atomic<bool> campaign_stop{false};
+extern "C" void campaign_on_signal(int sig) {
+    campaign_stop.store(true);
+    std::signal(sig, SIG_DFL);  // a second signal stops at once
+}
+}  // namespace
+
+int run_campaign_command(const CampaignArgs& args, std::ostream& out, std::ostream& progress) {
+    // Everything is checked before any work: the spec, every scenario, the shard, the output folder.
+    const CampaignSpec spec = load_campaign_spec(args.spec);
+    CampaignRun run;
+    run.shard = parse_shard(args.shard);
+    run.out_dir = args.out_dir;
+    run.threads = args.threads;
+    run.quiet = args.quiet;
+    run.cancel = &campaign_stop;
+    campaign_stop.store(false);
+    if (args.max_memory_gb < 0.0 && args.max_memory_gb != -1.0) throw InputError("", 0, "--max-memory", "must be 0 (no limit) or positive");
+    limit_memory(args.max_memory_gb, args.threads);
+    auto old_int = std::signal(SIGINT, campaign_on_signal);
+    auto old_term = std::signal(SIGTERM, campaign_on_signal);
+    CampaignOutcome o;
+    try {
+        o = run_campaign(spec, run, progress);
+    } catch (...) {
+        std::signal(SIGINT, old_int);
+        std::signal(SIGTERM, old_term);
+        throw;
+    }
+    std::signal(SIGINT, old_int);
+    std::signal(SIGTERM, old_term);
+    if (!o.complete) {
+        progress << "Stopped: " << o.resumed + o.finished << " of " << o.shard_cases << " cases of shard " << run.shard.text()
+                 << " are in " << args.out_dir << "/cases.csv; run the same command again to finish the rest.\n";
+        return 130;
+    }
+    out << detail::read_text_file(args.out_dir + "/summary.txt");
+    out << "Wrote " << args.out_dir << "/cases.csv (" << o.shard_cases << " cases, " << o.resumed << " from an earlier run), summary.txt, "
+        << "success_vs_epoch.png, separations.png, luck_fraction.png, closest_agreement.png\n";
+    return 0;
+}
+
+int run_merge(const MergeArgs& args, std::ostream& out) {
+    if (args.out_dir.empty()) throw InputError("", 0, "--out", "is required");
+    merge_campaigns(args.dirs, args.out_dir, out);
+    return 0;
+}
+
+int run_budget_command(const BudgetArgs& args, std::ostream& out, std::ostream& progress) {
+    const Scenario sc = load_scenario(args.scenario);
+    if (!sc.plan.present) throw InputError(sc.file, 0, "observing", "the scenario has no [observing] plan, so there is nothing to observe");
+    BudgetOptions o;
+    o.runs = args.runs;
+    o.seed = args.seed;
+    o.threads = args.threads;
+    o.ecc_sigma = args.ecc_sigma;
+    o.tilt_sigma_deg = args.tilt_sigma_deg;
+    o.starts = args.starts;
+    for (const std::string& e : args.era_sigma) {
+        const auto eq = e.rfind('=');
+        char* end = nullptr;
+        const double f = eq == std::string::npos ? NAN : std::strtod(e.c_str() + eq + 1, &end);
+        if (eq == std::string::npos || eq == 0 || !end || *end != '\0' || !std::isfinite(f))
+            throw InputError("", 0, "--era-sigma", "\"" + e + "\" is not LABEL=FACTOR (e.g. --era-sigma survey=2)");
+        o.era_sigma_scale.emplace_back(e.substr(0, eq), f);
+    }
+    o.end_year = args.end_year;
+    o.cadence = args.cadence;
+    o.mass_error = args.mass_error;
+    o.only = args.only;
+    o.combine = args.combine;
+    apply_what_ifs(sc, o);  // every option checked before any work
+    if (args.out_dir.empty()) throw InputError("", 0, "--out", "is required");
+    std::error_code ec;
+    std::filesystem::create_directories(args.out_dir, ec);
+    if (ec || !std::filesystem::is_directory(args.out_dir, ec))
+        throw InputError(args.out_dir, 0, "--out", "cannot create the folder" + (ec ? ": " + ec.message() : std::string()));
+    const std::string probe = args.out_dir + "/.budget-write-test";
+    try {
+        write_file_atomic(probe, "");
+        std::filesystem::remove(probe, ec);
+    } catch (const std::exception& e) {
+        throw InputError(args.out_dir, 0, "--out", std::string("cannot write in the folder: ") + e.what());
+    }
+    if (args.max_memory_gb < 0.0 && args.max_memory_gb != -1.0) throw InputError("", 0, "--max-memory", "must be 0 (no limit) or positive");
+    limit_memory(args.max_memory_gb, args.threads);
+    const BudgetResult b = run_budget(sc, o, args.quiet ? nullptr : &progress);
+    write_file_atomic(args.out_dir + "/budget.csv", budget_csv(b));
+    write_file_atomic(args.out_dir + "/budget_runs.csv", budget_runs_csv(b));
+    budget_plot(b, args.out_dir + "/budget.png");
+    out << budget_table(b);
+    out << "Wrote " << args.out_dir << "/budget.csv, budget_runs.csv and budget.png\n";
+    return 0;
+}
+
+}  // namespace wayward

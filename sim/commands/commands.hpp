@@ -1,0 +1,109 @@
+// The commands of the `wayward` tool as library functions (the CLI only parses arguments into these structs),
+// so tests and the viewer can run exactly what a user runs.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "sim/solve/solve.hpp"
+
+namespace wayward {
+
+struct EphemerisArgs {
+    std::string scenario;
+    std::vector<double> days;
+    std::uint64_t seed = 1;
+    std::string method = "rkf78";
+};
+int run_ephemeris(const EphemerisArgs& args, std::ostream& out);
+
+struct NewArgs {
+    std::string scenario;
+    std::uint64_t seed = 1;
+    std::string out_dir;
+    std::string key_dir;  // default: OUT/answer-key
+    bool force = false;
+};
+// Makes an exercise folder and prints its summary.
+int run_new(const NewArgs& args, std::ostream& out);
+
+struct ResidualsArgs {
+    std::string dir;
+    bool neglect_light_time = false;
+};
+// Fits the known-bodies model, writes residuals.csv and residuals.png into the exercise folder, prints RMS.
+int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& progress);
+
+struct SolveArgs {
+    std::string dir;
+    std::string distance = "free";  // free | fixed:A | gauss:A,SIGMA | spacing[:FRACTION]
+    bool circular = false;
+    bool coplanar = false;
+    double ecc_sigma = 0.1;       // weak prior on e cos(varpi), e sin(varpi)
+    double tilt_sigma_deg = 3.0;  // weak prior on the tilt components
+    std::optional<double> epoch_year;
+    int samples = 300;
+    int starts = 4;
+    unsigned threads = 0;
+    bool quiet = false;
+    bool neglect_light_time = false;
+};
+SolveOptions solve_options(const SolveArgs& args);  // parses the priors (InputError on bad values)
+int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress);
+
+struct ScoreArgs {
+    std::string dir;
+    std::string solution;             // default DIR/solution.toml
+    std::string key;                  // default DIR/answer-key/answer_key.toml
+    std::optional<double> lon_deg, lat_deg, epoch_year;  // a trainee's own prediction
+    std::string prediction_file;      // or a small TOML file with lon_deg, lat_deg, epoch_year
+    double window_years = 60.0;
+};
+int run_score(const ScoreArgs& args, std::ostream& out);
+
+}  // namespace wayward
+
+// ---- Campaigns, merge and the error budget (sim/campaign.hpp, sim/budget.hpp) ----
+namespace wayward {
+
+struct CampaignArgs {
+    std::string spec;
+    std::string out_dir;
+    unsigned threads = 0;        // cases solved at once (0: all cores)
+    std::string shard = "1/1";   // K/N: the units u with u % N == K - 1
+    double max_memory_gb = -1.0; // address-space cap (-1: 1 GB + 0.5 GB per thread; 0: none)
+    bool quiet = false;
+};
+// Runs (or resumes) a campaign; SIGINT/SIGTERM stop it after keeping every finished row (exit status 130).
+int run_campaign_command(const CampaignArgs& args, std::ostream& out, std::ostream& progress);
+
+struct MergeArgs {
+    std::vector<std::string> dirs;
+    std::string out_dir;
+};
+int run_merge(const MergeArgs& args, std::ostream& out);
+
+struct BudgetArgs {
+    std::string scenario;
+    int runs = 10;
+    std::uint64_t seed = 1;
+    std::string out_dir = ".";
+    unsigned threads = 0;
+    std::optional<double> ecc_sigma, tilt_sigma_deg;
+    int starts = 4;
+    std::vector<std::string> era_sigma;  // LABEL=FACTOR
+    std::optional<double> end_year;
+    double cadence = 1.0;
+    std::optional<double> mass_error;
+    std::vector<std::string> only;
+    std::vector<std::string> combine;
+    double max_memory_gb = -1.0;
+    bool quiet = false;
+};
+// Prints the budget table and writes OUT/budget.csv, OUT/budget_runs.csv and OUT/budget.png.
+int run_budget_command(const BudgetArgs& args, std::ostream& out, std::ostream& progress);
+
+}  // namespace wayward

@@ -1,0 +1,331 @@
+// Exercise folder I/O on the team's side: the brief, the observation log and the observer ephemeris.
+// Nothing here sees the truth generator; the sealed key is opened in truth/answer_key.cpp. See exercise.hpp.
+#include "sim/exercise/exercise.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <sstream>
+
+#include <toml++/toml.h>
+
+#include "sim/base/errors.hpp"
+#include "sim/base/units.hpp"
+#include "sim/io/fileio.hpp"
+#include "sim/io/hash.hpp"
+#include "sim/io/toml_reader.hpp"
+#include "sim/exercise/elements_toml.hpp"
+
+namespace wayward {
+
+namespace fs = std::filesystem;
+using detail::TableReader;
+
+std::size_t Brief::observer_index() const {
+    for (std::size_t i = 0; i < planets.size(); ++i)
+        if (planets[i].observer) return i;
+    throw InputError(file, 0, "planet", "the brief names no observer");
+}
+
+ExercisePaths exercise_paths(const std::string& dir, const std::string& key_dir) {
+    return {dir, key_dir.empty() ? dir + "/answer-key" : key_dir};
+}
+
+namespace {
+
+std::string fmt(const char* f, double v) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, f, v);
+    return buf;
+}
+
+}  // namespace
+
+namespace detail {
+
+toml::array vec_array(const Vec3& v) {
+    toml::array a;
+    for (int k = 0; k < 3; ++k) a.push_back(v[k]);
+    return a;
+}
+
+toml::table elements_table(const Elements& el) {
+    toml::table t;
+    t.insert("a", el.semi_major_axis);
+    t.insert("e", el.eccentricity);
+    t.insert("i_deg", el.inclination / deg);
+    t.insert("node_deg", el.ascending_node / deg);
+    t.insert("peri_deg", el.arg_periapsis / deg);
+    t.insert("mean_anomaly_deg", el.mean_anomaly / deg);
+    return t;
+}
+
+std::string toml_text(const toml::table& t) {
+    std::ostringstream ss;
+    ss << t << "\n";
+    return ss.str();
+}
+
+// The inverse of elements_table: a bound orbit's elements in degrees, validated.
+Elements read_elements(TableReader& r) {
+    Elements el;
+    el.semi_major_axis = r.required_number("a");
+    if (!(el.semi_major_axis > 0.0)) r.fail("a", "must be positive");
+    el.eccentricity = r.required_number("e");
+    if (!(el.eccentricity >= 0.0 && el.eccentricity < 1.0)) r.fail("e", "must be in [0, 1)");
+    el.inclination = r.required_number("i_deg") * deg;
+    el.ascending_node = r.required_number("node_deg") * deg;
+    el.arg_periapsis = r.required_number("peri_deg") * deg;
+    el.mean_anomaly = r.required_number("mean_anomaly_deg") * deg;
+    return el;
+}
+
+}  // namespace detail
+
+using detail::elements_table;
+using detail::read_elements;
+using detail::toml_text;
+using detail::vec_array;
+
+std::string format_brief(const Brief& b) {
+    toml::table root;
+    toml::table ex;
+    ex.insert("scenario", b.scenario_name);
+    ex.insert("seed", static_cast<int64_t>(b.seed));
+    ex.insert("epoch0_year", b.epoch0_year);
+    ex.insert("span_years", b.span_years);
+    ex.insert("answer_key_sha256", b.answer_key_sha256);
+    root.insert("exercise", ex);
+    toml::table star;
+    star.insert("name", b.star_name);
+    star.insert("mass", b.star_mass);
+    root.insert("star", star);
+    toml::array planets;
+    for (const BriefPlanet& p : b.planets) {
+        toml::table t = elements_table(p.elements);
+        t.insert("name", p.name);
+        t.insert("observer", p.observer);
+        t.insert("observed", p.observed);
+        t.insert("mass", p.mass);
+        planets.push_back(t);
+    }
+    root.insert("planet", planets);
+    toml::table obs;
+    obs.insert("elongation_limit_deg", b.elongation_limit_deg);
+    toml::array epochs;
+    for (double y : b.search_epochs_year) epochs.push_back(y);
+    obs.insert("search_epochs_year", epochs);
+    obs.insert("field_radius_deg", b.field_radius_deg);
+    toml::array eras;
+    for (const BriefEra& e : b.eras) {
+        toml::table t;
+        t.insert("label", e.label);
+        t.insert("start_year", e.start_year);
+        t.insert("end_year", e.end_year);
+        t.insert("per_season", static_cast<int64_t>(e.per_season));
+        t.insert("precision_arcsec", e.precision_arcsec);
+        t.insert("records_sigma", e.records_sigma);
+        eras.push_back(t);
+    }
+    obs.insert("era", eras);
+    root.insert("observing", obs);
+    return "# Wayward exercise brief: what the team knows. The answer key is sealed; its SHA-256 is below.\n" + toml_text(root);
+}
+
+std::string format_observations_csv(const std::vector<Observation>& obs, double epoch0_year) {
+    std::string s = "time_days,year,target,lon_deg,lat_deg,sigma_lon_arcsec,sigma_lat_arcsec,era\n";
+    for (const Observation& o : obs) {
+        s += fmt("%.8f", o.time_days) + "," + fmt("%.6f", decimal_year(epoch0_year, o.time_days)) + "," + o.target + "," +
+             fmt("%.9f", o.lon_deg) + "," + fmt("%.9f", o.lat_deg) + "," +
+             (o.sigma_lon_arcsec ? fmt("%.6g", *o.sigma_lon_arcsec) : "") + "," +
+             (o.sigma_lat_arcsec ? fmt("%.6g", *o.sigma_lat_arcsec) : "") + "," + o.era + "\n";
+    }
+    return s;
+}
+
+std::string format_observer_csv(const std::vector<ObserverFix>& track) {
+    std::string s = "time_days,x_au,y_au,z_au\n";
+    for (const ObserverFix& f : track)
+        s += fmt("%.8f", f.time_days) + "," + fmt("%.13f", f.position.x()) + "," + fmt("%.13f", f.position.y()) + "," +
+             fmt("%.13f", f.position.z()) + "\n";
+    return s;
+}
+
+std::vector<ObserverFix> parse_observer_csv(const std::string& text, const std::string& file) {
+    std::vector<ObserverFix> out;
+    std::istringstream in(text);
+    std::string line;
+    long row = 0;
+    while (std::getline(in, line)) {
+        ++row;
+        if (!line.empty() && line.back() == '\r') line.pop_back();
+        if (row == 1) {
+            if (line != "time_days,x_au,y_au,z_au") throw InputError(file, 1, "header", "expected the header \"time_days,x_au,y_au,z_au\"");
+            continue;
+        }
+        if (line.empty()) continue;
+        double v[4];
+        const char* p = line.c_str();
+        for (int c = 0; c < 4; ++c) {
+            char* end = nullptr;
+            v[c] = std::strtod(p, &end);
+            static const char* names[] = {"time_days", "x_au", "y_au", "z_au"};
+            if (end == p || !std::isfinite(v[c]) || (c < 3 ? *end != ',' : *end != '\0'))
+                throw InputError(file, row, names[c], "is not a finite number");
+            p = end + 1;
+        }
+        if (!out.empty() && !(v[0] > out.back().time_days)) throw InputError(file, row, "time_days", "times must increase");
+        out.push_back({v[0], Vec3(v[1], v[2], v[3])});
+    }
+    return out;
+}
+
+std::vector<Observation> parse_observations_csv(const std::string& text, const std::string& file) {
+    std::vector<Observation> out;
+    std::istringstream in(text);
+    std::string line;
+    long row = 0;
+    const std::string header = "time_days,year,target,lon_deg,lat_deg,sigma_lon_arcsec,sigma_lat_arcsec,era";
+    static const char* names[] = {"time_days", "year", "target", "lon_deg", "lat_deg", "sigma_lon_arcsec", "sigma_lat_arcsec", "era"};
+    while (std::getline(in, line)) {
+        ++row;
+        if (!line.empty() && line.back() == '\r') line.pop_back();
+        if (row == 1) {
+            if (line != header) throw InputError(file, 1, "header", "expected the header \"" + header + "\"");
+            continue;
+        }
+        if (line.empty()) continue;
+        const std::vector<std::string> cells = split_csv_line(line);
+        if (cells.size() != 8)
+            throw InputError(file, row, "row", "expected 8 columns, found " + std::to_string(cells.size()));
+        auto number = [&](std::size_t c, bool optional) -> std::optional<double> {
+            if (cells[c].empty()) {
+                if (optional) return std::nullopt;
+                throw InputError(file, row, names[c], "is empty");
+            }
+            char* end = nullptr;
+            const double v = std::strtod(cells[c].c_str(), &end);
+            if (end == cells[c].c_str() || *end != '\0' || !std::isfinite(v))
+                throw InputError(file, row, names[c], "\"" + cells[c] + "\" is not a finite number");
+            return v;
+        };
+        Observation o;
+        o.time_days = *number(0, false);
+        number(1, false);
+        o.target = cells[2];
+        if (o.target.empty()) throw InputError(file, row, "target", "is empty");
+        o.lon_deg = *number(3, false);
+        o.lat_deg = *number(4, false);
+        if (!(o.lon_deg >= 0.0 && o.lon_deg < 360.0)) throw InputError(file, row, "lon_deg", "must be in [0, 360)");
+        if (!(o.lat_deg >= -90.0 && o.lat_deg <= 90.0)) throw InputError(file, row, "lat_deg", "must be in [-90, 90]");
+        o.sigma_lon_arcsec = number(5, true);
+        o.sigma_lat_arcsec = number(6, true);
+        for (std::size_t c : {std::size_t{5}, std::size_t{6}}) {
+            const auto& s = c == 5 ? o.sigma_lon_arcsec : o.sigma_lat_arcsec;
+            if (s && !(*s > 0.0)) throw InputError(file, row, names[c], "must be positive");
+        }
+        o.era = cells[7];
+        out.push_back(std::move(o));
+    }
+    if (row == 0) throw InputError(file, 1, "header", "the file is empty");
+    return out;
+}
+
+Brief load_brief(const std::string& path) {
+    const toml::table root_t = detail::parse_toml(detail::read_text_file(path), path);
+    TableReader root(root_t, path, "");
+    Brief b;
+    b.file = path;
+    const toml::table* ex = root.table("exercise");
+    if (!ex) throw InputError(path, 1, "exercise", "the [exercise] table is missing: is this a Wayward brief?");
+    {
+        TableReader r(*ex, path, "exercise");
+        b.scenario_name = r.required_string("scenario");
+        b.seed = static_cast<std::uint64_t>(r.integer("seed").value_or(0));
+        b.epoch0_year = r.required_number("epoch0_year");
+        b.span_years = r.required_number("span_years");
+        b.answer_key_sha256 = r.required_string("answer_key_sha256");
+        r.finish();
+    }
+    const toml::table* star = root.table("star");
+    if (!star) throw InputError(path, 1, "star", "the [star] table is missing");
+    {
+        TableReader r(*star, path, "star");
+        b.star_name = r.required_string("name");
+        b.star_mass = r.required_number("mass");
+        if (!(b.star_mass > 0.0)) r.fail("mass", "must be positive");
+        r.finish();
+    }
+    const auto planets = root.tables("planet");
+    for (std::size_t k = 0; k < planets.size(); ++k) {
+        TableReader r(*planets[k], path, "planet[" + std::to_string(k + 1) + "]");
+        BriefPlanet p;
+        p.name = r.required_string("name");
+        p.observer = r.boolean("observer").value_or(false);
+        p.observed = r.boolean("observed").value_or(false);
+        p.mass = r.required_number("mass");
+        if (!(p.mass > 0.0)) r.fail("mass", "must be positive");
+        p.elements = read_elements(r);
+        r.finish();
+        b.planets.push_back(p);
+    }
+    const toml::table* obs = root.table("observing");
+    if (!obs) throw InputError(path, 1, "observing", "the [observing] table is missing");
+    {
+        TableReader r(*obs, path, "observing");
+        b.elongation_limit_deg = r.required_number("elongation_limit_deg");
+        b.search_epochs_year = r.numbers("search_epochs_year").value_or(std::vector<double>{});
+        if (b.search_epochs_year.empty()) r.fail("search_epochs_year", "is required");
+        b.field_radius_deg = r.required_number("field_radius_deg");
+        if (!(b.field_radius_deg > 0.0)) r.fail("field_radius_deg", "must be positive");
+        const auto eras = r.tables("era");
+        for (std::size_t k = 0; k < eras.size(); ++k) {
+            TableReader e(*eras[k], path, "observing.era[" + std::to_string(k + 1) + "]");
+            BriefEra era;
+            era.label = e.required_string("label");
+            era.start_year = e.required_number("start_year");
+            era.end_year = e.required_number("end_year");
+            era.per_season = static_cast<int>(e.integer("per_season").value_or(1));
+            era.precision_arcsec = e.number_or("precision_arcsec", 0.0);
+            era.records_sigma = e.boolean("records_sigma").value_or(true);
+            e.finish();
+            b.eras.push_back(era);
+        }
+        r.finish();
+    }
+    root.finish();
+    int observers = 0;
+    for (const BriefPlanet& p : b.planets) observers += p.observer ? 1 : 0;
+    if (observers != 1) throw InputError(path, 1, "planet", "the brief must name exactly one observer planet");
+    return b;
+}
+
+Exercise load_exercise(const std::string& dir) {
+    const ExercisePaths p = exercise_paths(dir);
+    if (!fs::exists(p.brief()))
+        throw InputError(p.brief(), 0, "", "no exercise here (brief.toml is missing; make one with `wayward new`)");
+    Exercise ex;
+    ex.dir = dir;
+    ex.brief = load_brief(p.brief());
+    ex.observations = parse_observations_csv(detail::read_text_file(p.observations()), p.observations());
+    ex.observer_track = parse_observer_csv(detail::read_text_file(p.observer_track()), p.observer_track());
+    // Every target must be a known planet of the brief, and not the observer.
+    for (std::size_t k = 0; k < ex.observations.size(); ++k) {
+        const std::string& t = ex.observations[k].target;
+        bool ok = false;
+        for (const BriefPlanet& bp : ex.brief.planets) ok |= bp.name == t && !bp.observer;
+        if (!ok) throw InputError(p.observations(), static_cast<long>(k + 2), "target", "\"" + t + "\" is not a known planet of the brief");
+    }
+    return ex;
+}
+
+System known_model_system(const Brief& brief) {
+    std::vector<HelioBody> bodies;
+    const double gm_star = gm_from_mass(brief.star_mass);
+    for (const BriefPlanet& p : brief.planets)
+        bodies.push_back({p.name, Role::known, p.observer, p.mass, elements_to_state(p.elements, gm_star + gm_from_mass(p.mass))});
+    return system_from_helio(brief.star_name, brief.star_mass, bodies);
+}
+
+}  // namespace wayward

@@ -1,0 +1,58 @@
+// A thin reader over toml++ tables that validates as it reads: every value is type-checked, every key that
+// was not read is reported as unknown, and every error names the file, the line and the dotted field path.
+#pragma once
+
+#include <optional>
+#include <set>
+#include <string>
+#include <vector>
+
+#include <toml++/toml.h>
+
+#include "sim/base/errors.hpp"
+
+namespace wayward::detail {
+
+class TableReader {
+public:
+    TableReader(const toml::table& table, std::string file, std::string path)
+        : table_(table), file_(std::move(file)), path_(std::move(path)) {}
+
+    const std::string& file() const { return file_; }
+    std::string field(const std::string& key) const { return path_.empty() ? key : path_ + "." + key; }
+    long line_of(const std::string& key) const;
+    long line() const { return static_cast<long>(table_.source().begin.line); }
+    bool has(const std::string& key) const { return table_.contains(key); }
+    const toml::node* node(const std::string& key);
+
+    std::optional<double> number(const std::string& key);
+    double number_or(const std::string& key, double fallback) { return number(key).value_or(fallback); }
+    double required_number(const std::string& key);
+    std::optional<long long> integer(const std::string& key);
+    std::optional<std::string> string(const std::string& key);
+    std::string required_string(const std::string& key);
+    std::optional<bool> boolean(const std::string& key);
+    std::optional<std::vector<double>> numbers(const std::string& key);
+    std::optional<std::vector<std::string>> strings(const std::string& key);
+    const toml::table* table(const std::string& key);
+    // Array of tables ([[key]]); empty when absent.
+    std::vector<const toml::table*> tables(const std::string& key);
+
+    // Throws for every key present in the table but never read.
+    void finish() const;
+    [[noreturn]] void fail(const std::string& key, const std::string& message) const;
+    [[noreturn]] void fail_at(long line, const std::string& key, const std::string& message) const;
+
+private:
+    const toml::table& table_;
+    std::string file_;
+    std::string path_;
+    std::set<std::string> used_;
+};
+
+// Parses TOML text, turning toml++'s parse errors into InputError with file and line.
+toml::table parse_toml(const std::string& text, const std::string& file);
+// Reads a whole file; throws InputError (line 0) if it cannot be read.
+std::string read_text_file(const std::string& path);
+
+}  // namespace wayward::detail

@@ -1,0 +1,93 @@
+// The fitting model: the team's known planets (masses from the brief), optionally a hidden body, Newtonian N-body.
+// For speed the fitting model treats the observer planet and its star as one inner pair: the outer bodies are
+// integrated about the pair's barycentre (with the pair's total mass and time-averaged quadrupole), and the
+// observer's heliocentric position is taken from the team's own ephemeris of its planet (observer.csv). A test
+// compares the model with the truth integrator. Units: days, radians inside; arcsec for residuals and sigma.
+#pragma once
+
+#include <array>
+#include <cstddef>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include <Eigen/Dense>
+
+#include "sim/exercise/exercise.hpp"
+#include "sim/physics/geometry.hpp"
+
+namespace wayward {
+
+struct FitObservation {
+    double time_days = 0.0;
+    std::size_t planet = 0;        // index into ModelSetup::planets (observed planets)
+    double lon = 0.0, lat = 0.0;   // radians
+    double sigma_lon_arcsec = 1.0, sigma_lat_arcsec = 1.0;  // weights in use
+    bool sigma_recorded = false;
+    std::size_t era = 0;           // index into ModelSetup::eras
+    bool rejected = false;         // set aside by outlier clipping
+};
+
+// The hidden body as fitted: in the observer's frame, with non-singular eccentricity components.
+struct HiddenOrbit {
+    double mass = 1e-5;             // solar masses
+    double semi_major_axis = 30.0;  // au
+    double k = 0.0, h = 0.0;        // e cos(varpi), e sin(varpi)
+    double mean_longitude = 0.0;    // at epoch 0, radians
+    double inclination = 0.0, node = 0.0;
+    Elements elements() const;      // classical elements in the observer frame
+};
+
+struct ModelOptions {
+    LightTime light_time = LightTime::corrected;
+    double rel_tol = 1e-12;
+};
+
+struct ModelState {
+    std::vector<StateVector> planets;  // heliocentric states of the observed planets at epoch 0 (reference frame)
+    std::optional<HiddenOrbit> hidden;
+};
+
+struct ModelSetup {
+    Brief brief;
+    System known;                        // star + known planets (barycentric, epoch 0) from the brief
+    std::size_t observer = 0;            // index in `known`
+    ObserverFrame frame;
+    std::vector<std::size_t> planets;    // indices in `known` of the observed planets
+    std::vector<std::string> eras;       // era labels, in order of first appearance
+    std::vector<bool> era_records_sigma;
+    std::vector<FitObservation> obs;
+    std::vector<Vec3> observer_helio;    // observer heliocentric position at each observation time
+    Ephemeris inner;                     // full N-body known model (for the observer's track at other times)
+    CentralQuadrupole pair_quadrupole;   // time-averaged quadrupole of the star-observer pair
+    double t_begin = 0.0, t_end = 0.0;   // span the model must cover
+    ModelOptions options;
+    bool weights_estimated() const;      // some era has no recorded sigma
+    Vec3 observer_helio_at(double t) const;
+};
+
+// Builds the setup from an exercise; throws InputError when the log cannot support a fit.
+ModelSetup make_setup(const Exercise& ex, const ModelOptions& options = {});
+ModelState initial_state(const ModelSetup& setup);
+
+// Forward model: integrate and return (optionally) the model's apparent positions at the observations.
+struct ModelRun {
+    bool ok = false;
+    std::string problem;
+    Ephemeris outer;                     // central pair + observed planets (+ hidden), barycentric
+    std::vector<std::size_t> planet_index;  // index in `outer` of each observed planet
+    std::optional<std::size_t> hidden_index;
+};
+// Integrates over [t_begin, t_end]; t_begin defaults to the setup's (the first observation, or epoch 0).
+ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_end, std::optional<double> t_begin = std::nullopt);
+
+// Apparent position (lon, lat, radians) of body `index` of the model run at time t, seen from the observer.
+SkyPosition model_apparent(const ModelSetup& setup, const ModelRun& run, std::size_t index, double t);
+
+// Weighted residuals (O - C)/sigma for every kept observation: 2 per observation (lambda cos beta, beta).
+// Rejected observations give zeros. Returns false if the model run failed.
+bool weighted_residuals(const ModelSetup& setup, const ModelRun& run, Eigen::VectorXd& out);
+// Unweighted O - C in arcsec, per observation (lambda cos beta, beta).
+std::vector<std::array<double, 2>> residuals_arcsec(const ModelSetup& setup, const ModelRun& run);
+
+}  // namespace wayward

@@ -1,0 +1,86 @@
+// Truth integration with Boost.Odeint and the dense ephemeris it produces.
+// Methods (registry below): Runge-Kutta-Fehlberg 7(8) (Fehlberg 1968), Dormand-Prince 5(4) (Dormand & Prince
+// 1980), Bulirsch-Stoer (Bulirsch & Stoer 1966), all with Odeint's step-size control.
+// Dense output: every accepted step stores position, velocity, acceleration and jerk, and the ephemeris answers
+// any time in its span by Hermite interpolation of degree 7 between steps (error O(h^8); the step is capped so
+// that the interpolation error stays far below the integration tolerance). Units: au, day.
+#pragma once
+
+#include <cstddef>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "sim/physics/system.hpp"
+
+namespace wayward {
+
+// The time-averaged quadrupole of an inner pair treated as one central body (body 0): Q = <d d^T> of the
+// pair's separation d, and the pair's reduced GM (G M m / (M + m)). Used by the fitting model, which
+// integrates the outer bodies about the star-observer pair; the monopole alone would leave about a
+// milliarcsecond of error.
+struct CentralQuadrupole {
+    Eigen::Matrix3d q = Eigen::Matrix3d::Zero();  // au^2
+    double gm_reduced = 0.0;                      // au^3/d^2
+};
+
+struct IntegratorOptions {
+    std::string method = "rkf78";
+    double rel_tol = 1e-13;
+    double abs_tol = 1e-17;
+    // Largest step as a fraction of the shortest orbital period in the system (bounds the Hermite error:
+    // about 4e-14 of the orbit's radius at 1/40).
+    double max_step_fraction = 1.0 / 40.0;
+    std::size_t max_steps = 20'000'000;
+    std::optional<CentralQuadrupole> central_quadrupole;
+};
+
+struct IntegratorMethod {
+    std::string name;
+    std::string description;
+    int order;
+};
+// The registry of integration methods selectable by name.
+const std::vector<IntegratorMethod>& integrator_methods();
+
+enum class IntegrationOutcome { ok, step_size_underflow, non_finite_state, too_many_steps, unknown_method };
+std::string to_string(IntegrationOutcome outcome);
+
+// Dense ephemeris: the state of every body at any time in [t_begin, t_end].
+struct Ephemeris {
+    std::vector<BodyInfo> bodies;
+    std::vector<double> gm;
+    std::vector<double> times;   // ascending node times (days)
+    std::vector<double> states;  // 6N per node
+    std::vector<double> accels;  // 3N per node
+    std::vector<double> jerks;   // 3N per node (Newtonian part; the tiny central-quadrupole term is left out)
+
+    std::size_t size() const { return gm.size(); }
+    std::size_t nodes() const { return times.size(); }
+    double t_begin() const { return times.front(); }
+    double t_end() const { return times.back(); }
+    bool covers(double t) const { return !times.empty() && t >= t_begin() && t <= t_end(); }
+    // Throws std::out_of_range outside the span.
+    StateVector state(std::size_t body, double t) const;
+    Vec3 position(std::size_t body, double t) const;
+    System system_at(double t) const;
+};
+
+struct IntegrationResult {
+    Ephemeris ephemeris;
+    IntegrationOutcome outcome = IntegrationOutcome::ok;
+    std::size_t steps = 0;
+    std::size_t rejected_steps = 0;
+    std::size_t rhs_calls = 0;
+};
+
+// Integrates from s.time to cover [t_begin, t_end] (backwards first when t_begin < s.time).
+IntegrationResult integrate(const System& s, double t_begin, double t_end, const IntegratorOptions& options = {});
+
+// Propagate a system to time t (no ephemeris kept). Throws on failure.
+System propagate(const System& s, double t, const IntegratorOptions& options = {});
+
+// Shortest two-body period in the system (days), used for step caps.
+double shortest_period(const System& s);
+
+}  // namespace wayward

@@ -1,0 +1,121 @@
+// Scores and luck curves; see score.hpp.
+#include "sim/score/score.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+
+#include "sim/base/errors.hpp"
+#include "sim/io/fileio.hpp"
+#include "sim/report/plot.hpp"
+#include "sim/base/units.hpp"
+
+namespace wayward {
+
+TruthTrack true_track(const Brief& brief, const AnswerKey& key, double year_from, double year_to, double step_years) {
+    const System sys = key.system();
+    const auto hidden = key.hidden_index();
+    if (!hidden) throw InputError(key.file, 0, "body", "the answer key has no hidden body");
+    const double span_end = brief.span_years * julian_year_days;
+    const IntegrationResult run = integrate(sys, -2.0, span_end);
+    if (run.outcome != IntegrationOutcome::ok) throw std::runtime_error("the truth could not be integrated: " + to_string(run.outcome));
+    const std::size_t obs = sys.observer_index();
+    const ObserverFrame frame = observer_frame(sys, obs);
+    TruthTrack t;
+    for (double y = year_from; y <= year_to + 1e-9; y += step_years) {
+        const double d = std::clamp(days_from_year(brief.epoch0_year, y), 0.0, span_end);
+        const Apparent a = apparent(run.ephemeris, frame, obs, *hidden, d);
+        t.points.push_back({y, a.sky.lon, a.sky.lat});
+    }
+    return t;
+}
+
+Score score_prediction(const Brief& brief, const AnswerKey& key, const Prediction& p, double window_years) {
+    const double lo_year = brief.epoch0_year, hi_year = brief.epoch0_year + brief.span_years;
+    if (!(p.epoch_year >= lo_year && p.epoch_year <= hi_year))
+        throw InputError("", 0, "epoch", "the prediction's epoch " + std::to_string(p.epoch_year) +
+                                             " lies outside the exercise's span (" + std::to_string(lo_year) + " to " +
+                                             std::to_string(hi_year) + ")");
+    Score s;
+    s.hidden_name = key.hidden_name;
+    s.epoch_year = p.epoch_year;
+    s.field_radius_deg = brief.field_radius_deg;
+    s.predicted_lon = p.lon;
+    s.predicted_lat = p.lat;
+    const TruthTrack at = true_track(brief, key, p.epoch_year, p.epoch_year, 1.0);
+    s.true_lon = at.points.front().lon;
+    s.true_lat = at.points.front().lat;
+    s.separation_arcmin = separation(p.lon, p.lat, s.true_lon, s.true_lat) / arcmin;
+    s.hit = s.separation_arcmin <= brief.field_radius_deg * 60.0;
+    const double det = p.cov_ll * p.cov_bb - p.cov_lb * p.cov_lb;
+    if (p.cov_ll > 0 && p.cov_bb > 0 && det > 0) {
+        const double dl = wrap_pi(s.true_lon - p.lon) * std::cos(p.lat) / arcsec, db = (s.true_lat - p.lat) / arcsec;
+        const double d2 = (p.cov_bb * dl * dl - 2 * p.cov_lb * dl * db + p.cov_ll * db * db) / det;
+        s.mahalanobis = std::sqrt(std::max(d2, 0.0));
+    }
+    // Luck curve over the window (clipped to the span), on the prediction's own track where it has one.
+    const double from = std::max(lo_year, p.epoch_year - window_years), to = std::min(hi_year, p.epoch_year + window_years);
+    s.luck_from_track = p.track.size() >= 2;
+    const double step = s.luck_from_track ? p.track[1].year - p.track[0].year : 0.25;
+    std::vector<double> years;
+    if (s.luck_from_track) {
+        for (const TrackPoint& t : p.track)
+            if (t.year >= from - 1e-9 && t.year <= to + 1e-9) years.push_back(t.year);
+    } else {
+        for (double y = from; y <= to + 1e-9; y += step) years.push_back(y);
+    }
+    if (years.empty()) years.push_back(p.epoch_year);
+    const TruthTrack truth = true_track(brief, key, years.front(), years.back(), step);
+    std::size_t inside = 0;
+    s.closest_arcmin = INFINITY;
+    for (std::size_t k = 0; k < years.size() && k < truth.points.size(); ++k) {
+        double plon = p.lon, plat = p.lat;
+        if (s.luck_from_track) {
+            const auto it = std::min_element(p.track.begin(), p.track.end(), [&](const TrackPoint& a, const TrackPoint& b) {
+                return std::abs(a.year - years[k]) < std::abs(b.year - years[k]);
+            });
+            plon = it->lon;
+            plat = it->lat;
+        }
+        const double sep = separation(plon, plat, truth.points[k].lon, truth.points[k].lat) / arcmin;
+        s.luck.push_back({years[k], sep});
+        if (sep <= brief.field_radius_deg * 60.0) ++inside;
+        if (sep < s.closest_arcmin) { s.closest_arcmin = sep; s.closest_year = years[k]; }
+    }
+    s.luck_fraction_inside = s.luck.empty() ? 0.0 : static_cast<double>(inside) / static_cast<double>(s.luck.size());
+    return s;
+}
+
+void write_luck(const Score& s, const std::string& csv_path, const std::string& png_path, const std::string& title) {
+    std::string csv = "year,separation_arcmin,inside_field\n";
+    char buf[128];
+    for (const LuckPoint& l : s.luck) {
+        std::snprintf(buf, sizeof buf, "%.4f,%.6f,%d\n", l.year, l.separation_arcmin, l.separation_arcmin <= s.field_radius_deg * 60.0 ? 1 : 0);
+        csv += buf;
+    }
+    write_file_atomic(csv_path, csv);
+
+    plot::Figure fig;
+    fig.title = title;
+    plot::Panel panel;
+    panel.title = s.luck_from_track ? "separation of the predicted track from the true position"
+                                    : "separation of the fixed prediction from the true position";
+    panel.x_label = "year";
+    panel.y_label = "separation (arcmin)";
+    panel.log_y = true;
+    plot::Series curve;
+    curve.label = "separation";
+    curve.width = 2.0;
+    for (const LuckPoint& l : s.luck) {
+        curve.x.push_back(l.year);
+        curve.y.push_back(std::max(l.separation_arcmin, 1e-3));
+    }
+    panel.spans = plot::spans_where_below(curve.x, curve.y, s.field_radius_deg * 60.0, plot::palette(2), "inside the field");
+    panel.series.push_back(curve);
+    panel.lines.push_back({s.field_radius_deg * 60.0, true, "field radius", plot::palette(1), true});
+    panel.lines.push_back({s.epoch_year, false, "search epoch", std::nullopt, true});
+    fig.panels.push_back(panel);
+    plot::save_png(fig, png_path);
+}
+
+}  // namespace wayward

@@ -1,0 +1,50 @@
+// Scoring a prediction against the truth: the great-circle separation (Vincenty's formula), hit or miss
+// against the field radius, the normalised (Mahalanobis) error where an ellipse was given, and the luck curve:
+// the separation between the predicted and the true position over a window of epochs, with the fraction of the
+// window inside the field radius and the epoch of closest agreement. The truth is integrated from the sealed
+// answer key, opened only after its SHA-256 has been checked against the brief.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "sim/solve/solve.hpp"
+#include "sim/truth/answer_key.hpp"
+
+namespace wayward {
+
+struct TruthTrack {
+    std::vector<TrackPoint> points;  // true apparent position of the hidden body
+};
+
+struct LuckPoint {
+    double year = 0.0;
+    double separation_arcmin = 0.0;
+};
+
+struct Score {
+    double epoch_year = 0.0;
+    double true_lon = 0.0, true_lat = 0.0;   // radians
+    double predicted_lon = 0.0, predicted_lat = 0.0;
+    double separation_arcmin = 0.0;
+    double field_radius_deg = 0.0;
+    bool hit = false;
+    std::optional<double> mahalanobis;        // sqrt(d^T Sigma^-1 d) with d = (dlambda cos beta, dbeta)
+    std::vector<LuckPoint> luck;
+    double luck_fraction_inside = 0.0;        // of the window, separation <= field radius
+    double closest_year = 0.0, closest_arcmin = 0.0;
+    bool luck_from_track = false;             // false: a single point held fixed over the window
+    std::string hidden_name;
+};
+
+// The true apparent track of the hidden body between two years (from the answer key), at a step in years.
+TruthTrack true_track(const Brief& brief, const AnswerKey& key, double year_from, double year_to, double step_years);
+
+// Scores a prediction (track optional) against the truth. The window defaults to +- 60 years, clipped to the span.
+Score score_prediction(const Brief& brief, const AnswerKey& key, const Prediction& prediction, double window_years = 60.0);
+
+// Writes luck.csv and luck.png beside each other.
+void write_luck(const Score& s, const std::string& csv_path, const std::string& png_path, const std::string& title);
+
+}  // namespace wayward

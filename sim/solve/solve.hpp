@@ -1,0 +1,118 @@
+// The inverse problem: infer the hidden body's orbit and mass from the observations, jointly with corrections
+// to the observed planets' initial states, and predict its place on the sky at an epoch with an error ellipse.
+//
+// Method: (1) the known-bodies fit gives weights, outlier flags and the planets' states; (2) a grid over
+// (semi-major axis, mean longitude at epoch 0) is screened with the hidden body's signature taken as linear in
+// its mass (one model run per grid node, then a linear least-squares solve for the mass and the planets'
+// corrections); (3) the best distinct grid minima start Levenberg-Marquardt fits of all parameters (the
+// planets' Jacobian columns are held at their known-fit values while the hidden body's are re-differenced;
+// the best minimum is then polished with the full Jacobian); (4) covariance (J^T W J)^-1, scaled by the
+// reduced chi2 where weights were estimated; (5) the sky position at the epoch with its 1-sigma ellipse by
+// linear propagation, checked by sampling the covariance, and the radius that holds 90% of the samples.
+// Priors enter as extra weighted residuals. Units: solar masses, au, radians inside; arcsec / arcmin out.
+#pragma once
+
+#include <atomic>
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "sim/fit/known_fit.hpp"
+
+namespace wayward {
+
+enum class DistancePrior { free, fixed, gaussian, spacing };
+
+struct SolveOptions {
+    DistancePrior distance = DistancePrior::free;
+    double distance_au = 0.0;              // fixed or Gaussian mean
+    double distance_sigma_au = 0.0;        // Gaussian sigma
+    double spacing_sigma_fraction = 0.1;   // spacing-rule prior: sigma as a fraction of the rule's distance
+    bool circular = false;
+    bool coplanar = false;                 // true: the orbit lies in the observer's plane
+    double eccentricity_prior_sigma = 0.1; // weak Gaussian prior on e cos(varpi), e sin(varpi) when not circular
+    double inclination_prior_rad = 3.0 * 0.017453292519943295;  // weak Gaussian prior on the tilt components
+    int grid_distances = 10;
+    int grid_longitudes = 16;
+    int starts = 4;                        // distinct grid minima refined by Levenberg-Marquardt
+    int samples = 300;                     // covariance samples for the ellipse check and the 90% radius
+    std::optional<double> epoch_year;      // default: the brief's first search epoch
+    double track_years = 60.0;             // predicted track +- this around the epoch
+    double track_step_years = 0.25;
+    std::uint64_t seed = 1;                // for the covariance samples
+    ModelOptions model;
+    unsigned threads = 0;                  // 0: all cores (results do not depend on it)
+    std::string describe() const;          // one line in words
+};
+
+struct Minimum {
+    HiddenOrbit orbit;
+    double chi2 = 0.0;
+    bool converged = false;
+    int iterations = 0;
+    double start_distance_au = 0.0, start_longitude = 0.0;
+};
+
+struct TrackPoint {
+    double year = 0.0;
+    double lon = 0.0, lat = 0.0;  // radians
+};
+
+struct Prediction {
+    double epoch_year = 0.0;
+    double lon = 0.0, lat = 0.0, distance_au = 0.0;
+    // Covariance of (lambda cos(beta), beta) in arcsec^2 by linear propagation.
+    double cov_ll = 0.0, cov_lb = 0.0, cov_bb = 0.0;
+    double semi_major_arcsec = 0.0, semi_minor_arcsec = 0.0;
+    double orientation_deg = 0.0;   // major axis, from +lambda towards +beta
+    // The same from the covariance samples.
+    double sampled_semi_major_arcsec = 0.0, sampled_semi_minor_arcsec = 0.0;
+    double radius90_arcsec = 0.0;   // holds 90% of the sampled positions (about the predicted point)
+    int samples_used = 0;
+    std::vector<TrackPoint> track;
+};
+
+struct Solution {
+    std::string exercise_sha256;    // the brief's answer-key digest: ties the solution to its exercise
+    std::string scenario_name;
+    std::string priors;
+    std::vector<Minimum> minima;    // distinct local minima, best first
+    HiddenOrbit best;
+    std::vector<std::string> parameter_names;  // of the hidden-body parameters in the covariance below
+    Eigen::MatrixXd hidden_covariance;         // of those parameters (log mass, a, ...)
+    double mass_sigma = 0.0, distance_sigma_au = 0.0;
+    double mass_distance_correlation = 0.0;
+    double chi2 = 0.0;
+    std::size_t dof = 0;
+    bool covariance_scaled = false;
+    double spacing_rule_au = 0.0;   // the rule's next distance (0 if fewer than 2 known planets)
+    int model_runs = 0;
+    Prediction prediction;
+};
+
+struct SolveProgress {
+    std::function<void(const std::string& stage, double fraction)> report;
+    const std::atomic<bool>* cancel = nullptr;
+};
+
+// Geometric progression log a_n = log a_0 + n log r fitted to the known planets' semi-major axes (a common
+// spacing rule, empirical): the next term after the outermost known planet.
+double spacing_rule_next(const Brief& brief);
+
+Solution solve(const Exercise& ex, const SolveOptions& options, const SolveProgress& progress = {});
+
+// Prediction of the hidden body of a model state at an epoch (with its track), no covariance.
+Prediction predict_position(const ModelSetup& setup, const ModelState& state, double epoch_year, double track_years,
+                            double track_step_years);
+
+// Semi-axes (sqrt of the eigenvalues) and orientation (major axis, degrees from +lambda towards +beta, in
+// [0, 180)) of the 2x2 covariance [[cll, clb], [clb, cbb]].
+void ellipse_axes(double cll, double clb, double cbb, double& major, double& minor, double& orientation_deg);
+
+// solution.toml
+std::string solution_toml(const Solution& s);
+Solution load_solution(const std::string& path);
+
+}  // namespace wayward
