@@ -134,3 +134,9 @@ TEST_CASE("a missing exercise folder is a clear error") {
     CHECK(r.status == 2);
     CHECK(r.output.find("brief.toml is missing") != std::string::npos);
 }
+
+TEST_CASE("wayward --version prints the project's version and exits 0") {
+    const auto r = testing::run_cli("--version");
+    CHECK(r.status == 0);
+    CHECK(r.output == std::string("wayward ") + WAYWARD_VERSION + "\n");
+}

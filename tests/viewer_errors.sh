@@ -25,6 +25,12 @@ expect() {
   echo "ok: exit $got, '$pattern': $*"
 }
 
+# --version needs no display and prints the version on stdout.
+if out=$(env -u DISPLAY "$view" --version) && [[ "$out" =~ ^wayward-view\ [0-9]+\.[0-9]+\.[0-9]+$ ]]; then
+  echo "ok: --version prints '$out'"
+else
+  echo "FAIL: wayward-view --version printed '$out'" >&2; failures=$((failures + 1))
+fi
 expect 2 "DISPLAY is not set" -- env -u DISPLAY "$view" "$scenario" --screenshot "$tmp/a.png"
 expect 2 "DISPLAY is not set" -- env DISPLAY= "$view" "$scenario"
 expect 2 "cannot open the X display ':4711'" -- env DISPLAY=:4711 "$view" "$scenario" --screenshot "$tmp/b.png"

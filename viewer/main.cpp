@@ -14,6 +14,7 @@ int main(int argc, char** argv) {
     AppOptions opt;
     CLI::App app{"wayward-view: rehearse on an exercise folder (trainee mode), or watch a scenario's invented system "
                  "from above and from the observer planet's sky (author mode)"};
+    app.set_version_flag("--version", std::string("wayward-view ") + WAYWARD_VERSION);
     std::string size;
     app.add_option("input", opt.input,
                    "exercise folder (trainee mode: the hidden body stays sealed until revealed) or scenario file "

@@ -11,6 +11,7 @@
 int main(int argc, char** argv) {
     using namespace wayward;
     CLI::App app{"wayward: rehearse the prediction of an unseen planet from the pull it exerts on planets you can see"};
+    app.set_version_flag("--version", std::string("wayward ") + WAYWARD_VERSION);
     app.require_subcommand(1);
 
     EphemerisArgs eph;
