@@ -60,8 +60,22 @@ TEST_CASE("score: a prediction on the true position scores zero; one degree nort
     std::snprintf(args, sizeof args, " --lon %.12f --lat %.12f --epoch %.6f", t.points[0].lon / deg, t.points[0].lat / deg + 1.0, year);
     const auto north = testing::run_cli("score " + dir.string() + args);
     CHECK(std::abs(number_after(north.output, "Separation: ") - 60.0) < 1e-3);
-    CHECK(fs::exists(dir / "luck.csv"));
-    CHECK(fs::exists(dir / "luck.png"));
+    CHECK(fs::exists(dir / "luck_own.csv"));
+    CHECK(fs::exists(dir / "luck_own.png"));
+    fs::remove_all(dir);
+}
+
+TEST_CASE("score: a trainee's own prediction never overwrites the solver's luck curve") {
+    const fs::path dir = make_dir("score-own");
+    const std::string solver_luck = "time,marker\n1,solver\n";
+    std::ofstream(dir / "luck.csv") << solver_luck;  // stands for the solver's luck curve
+    const auto r = testing::run_cli("score " + dir.string() + " --lon 10 --lat 0 --epoch " +
+                                    std::to_string(load_exercise(dir.string()).brief.search_epochs_year.front()));
+    CHECK(r.status == 0);
+    std::ifstream in(dir / "luck.csv");
+    CHECK(std::string(std::istreambuf_iterator<char>(in), {}) == solver_luck);
+    CHECK(fs::exists(dir / "luck_own.csv"));
+    CHECK(r.output.find("luck_own.csv") != std::string::npos);
     fs::remove_all(dir);
 }
 

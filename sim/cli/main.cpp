@@ -33,6 +33,7 @@ int main(int argc, char** argv) {
     auto* c_res = app.add_subcommand("residuals", "fit the known planets only and write their O−C residuals (CSV, PNG)");
     c_res->add_option("exercise", res.dir, "exercise folder")->required();
     c_res->add_flag("--neglect-light-time", res.neglect_light_time, "leave light time out of the model");
+    c_res->add_flag("--quiet", res.quiet, "no progress lines on stderr");
 
     SolveArgs sv;
     auto* c_solve = app.add_subcommand("solve", "infer the hidden body's orbit and mass and predict its position at the search epoch");

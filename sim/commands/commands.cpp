@@ -78,7 +78,7 @@ int run_new(const NewArgs& args, std::ostream& out) {
     out << "Exercise written to " << paths.dir << " (answer key sealed in " << paths.key_dir << ")\n";
     out << "Scenario: " << sc.name << ", seed " << args.seed << (truth.draws > 1 ? ", accepted on draw " + std::to_string(truth.draws) : "") << "\n";
     out << "Span: " << sc.epoch0_year << " to " << sc.epoch0_year + sc.span_years << " (" << sc.span_years << " years)\n";
-    out << "Star: " << truth.system.bodies[0].name << ", " << truth.star_mass << " solar masses\n";
+    out << "Star: " << truth.system.bodies[0].name << ", " << truth.star_mass << (truth.star_mass == 1.0 ? " solar mass\n" : " solar masses\n");
     out << "Known planets:\n";
     for (const BriefPlanet& p : brief.planets)
         out << "  " << std::left << std::setw(12) << p.name << " a = " << std::setprecision(4) << p.elements.semi_major_axis
@@ -108,12 +108,15 @@ int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& pr
     const Exercise ex = load_exercise(args.dir);
     ModelOptions mo;
     if (args.neglect_light_time) mo.light_time = LightTime::neglected;
-    const KnownFit fit = fit_known(ex, mo, [&](const std::string& line) { progress << line << "\n" << std::flush; });
+    const KnownFit fit = fit_known(ex, mo, [&](const std::string& line) {
+        if (!args.quiet) progress << line << "\n" << std::flush;
+    });
     write_file_atomic(args.dir + "/residuals.csv", residuals_csv(fit.setup, fit.residuals));
     residuals_plot(fit.setup, fit.residuals, args.dir + "/residuals.png",
                    "O−C of the known-planets-only model: " + ex.brief.scenario_name);
-    out << "Known-planets-only fit of " << fit.setup.planets.size() << " planets to " << fit.setup.obs.size() << " observations ("
-        << fit.rejected << " set aside as outliers)\n";
+    const std::size_t n_planets = fit.setup.planets.size(), n_obs = fit.setup.obs.size();
+    out << "Known-planets-only fit of " << n_planets << (n_planets == 1 ? " planet" : " planets") << " to " << n_obs
+        << (n_obs == 1 ? " observation (" : " observations (") << fit.rejected << " set aside as outliers)\n";
     print_residual_summary(fit, out);
     out << "Wrote " << args.dir << "/residuals.csv and " << args.dir << "/residuals.png\n";
     return 0;
@@ -247,7 +250,9 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
     const std::string key_path = args.key.empty() ? exercise_paths(args.dir).answer_key() : args.key;
     const AnswerKey key = open_answer_key(ex.brief, key_path);
     const Score sc = score_prediction(ex.brief, key, p, args.window_years);
-    write_luck(sc, args.dir + "/luck.csv", args.dir + "/luck.png", "Luck of the epoch: " + ex.brief.scenario_name);
+    // A prediction of the trainee's own gets files of its own, so it never overwrites the solver's luck curve.
+    const std::string stem = (own || !args.prediction_file.empty()) ? "luck_own" : "luck";
+    write_luck(sc, args.dir + "/" + stem + ".csv", args.dir + "/" + stem + ".png", "Luck of the epoch: " + ex.brief.scenario_name);
 
     out << std::fixed << std::setprecision(3);
     out << "Answer key verified (SHA-256 matches the brief). Scoring " << source << ".\n";
@@ -260,7 +265,7 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
     out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
         << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "
         << std::setprecision(3) << sc.closest_arcmin << " arcmin in " << std::setprecision(2) << sc.closest_year << "\n";
-    out << std::defaultfloat << "Wrote " << args.dir << "/luck.csv and " << args.dir << "/luck.png\n";
+    out << std::defaultfloat << "Wrote " << args.dir << "/" << stem << ".csv and " << args.dir << "/" << stem << ".png\n";
     return 0;
 }
 

@@ -33,6 +33,7 @@ int run_new(const NewArgs& args, std::ostream& out);
 struct ResidualsArgs {
     std::string dir;
     bool neglect_light_time = false;
+    bool quiet = false;  // no progress lines on stderr
 };
 // Fits the known-bodies model, writes residuals.csv and residuals.png into the exercise folder, prints RMS.
 int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& progress);
