@@ -77,8 +77,9 @@ void write_file(const std::string& path, const std::string& text) { std::ofstrea
 LoadOutcome open(const std::string& dir, bool start = true) {
     LoadOptions o;
     o.star_count = 100;
-    o.start_work = start;
-    return load_model(dir, o);
+    LoadOutcome loaded = load_model(dir, o);
+    if (loaded.model) attach_analysis(*loaded.model, start);
+    return loaded;
 }
 
 }  // namespace
@@ -179,21 +180,21 @@ TEST_CASE("the known-bodies fit runs in a worker and gives sim's residuals; the 
     std::string line;
     while (std::getline(lines, line)) {
         for (const ResidualSummaryRow& r : residual_summary(*a.fit)) {
-            const std::string prefix = "  " + r.planet;
-            if (line.rfind(prefix, 0) != 0 || line.find(r.era) == std::string::npos) continue;
-            std::istringstream rest(line.substr(line.find(r.era) + r.era.size()));
+            const std::string prefix = "  " + r.planet_name;
+            if (line.rfind(prefix, 0) != 0 || line.find(r.era_name) == std::string::npos) continue;
+            std::istringstream rest(line.substr(line.find(r.era_name) + r.era_name.size()));
             double nv, l, b, sig, out;
             rest >> nv >> l >> b >> sig;
             rest.ignore(1);  // the '*' of an estimated sigma, or a space
             rest >> out;
-            cli[r.planet + " " + r.era] = {nv, l, b, out};
+            cli[r.planet_name + " " + r.era_name] = {nv, l, b, out};
         }
     }
     const auto rows = residual_summary(*a.fit);
     REQUIRE(rows.size() == cli.size());
     for (const ResidualSummaryRow& r : rows) {
-        CAPTURE(r.planet + " " + r.era);
-        const auto& v = cli[r.planet + " " + r.era];
+        CAPTURE(r.planet_name + " " + r.era_name);
+        const auto& v = cli[r.planet_name + " " + r.era_name];
         CHECK(static_cast<double>(r.kept) == v[0]);
         CHECK(std::abs(r.rms_lon - v[1]) <= 0.0005);
         CHECK(std::abs(r.rms_lat - v[2]) <= 0.0005);

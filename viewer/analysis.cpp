@@ -157,7 +157,7 @@ bool Analysis::request_reveal(const ViewerModel& model) {
     const std::vector<double> times = model.sample_times;
     reveal_job.start([brief, key, times](JobControl& control) {
         control.report("integrating the true system from the answer key", -1.0);
-        return make_revealed_truth(brief, key, times);
+        return make_revealed_truth(key, std::make_shared<const TruthEphemeris>(integrate_truth(brief, key)), times);
     });
     return true;
 }
@@ -293,7 +293,7 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
         const ScoreInput in = score_input(controls);
         scoring_ = in;
         const Brief brief = exercise_->brief;
-        const AnswerKey key = *opened_key_;
+        std::shared_ptr<const TruthEphemeris> truth = model.revealed->truth;  // the reveal's integration, not another
         std::shared_ptr<const Solution> s = solution;
         std::optional<Prediction> own;
         if (in.marker) {
@@ -303,12 +303,12 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
             p.epoch_year = model.year(in.epoch_days);
             own = p;
         }
-        score_job.start([brief, key, s, own](JobControl& control) {
+        score_job.start([brief, truth, s, own](JobControl& control) {
             ScoreSet set;
             if (own) {
                 control.report("scoring your prediction", -1.0);
                 try {
-                    set.trainee = ScoredPrediction{"your prediction", *own, score_prediction(brief, key, *own, luck_window_years)};
+                    set.trainee = ScoredPrediction{"your prediction", *own, score_prediction(brief, *truth, *own, luck_window_years)};
                 } catch (const std::exception& e) {
                     set.trainee_error = e.what();
                 }
@@ -317,7 +317,7 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
                 control.report("scoring the solver's prediction", -1.0);
                 try {
                     set.solver = ScoredPrediction{"the solver's prediction", s->prediction,
-                                                  score_prediction(brief, key, s->prediction, luck_window_years)};
+                                                  score_prediction(brief, *truth, s->prediction, luck_window_years)};
                 } catch (const std::exception& e) {
                     set.solver_error = e.what();
                 }
@@ -341,6 +341,13 @@ bool Analysis::wait_idle(ViewerModel& m, ViewerControls& c, double timeout_secon
         if (std::chrono::steady_clock::now() > until) return false;
         std::this_thread::sleep_for(std::chrono::milliseconds(5));
     }
+}
+
+void attach_analysis(ViewerModel& m, bool start_fit) {
+    if (m.mode != ViewerMode::trainee || !m.exercise || m.analysis) return;
+    m.analysis = std::make_shared<Analysis>(m.exercise);
+    m.analysis->load_solution_file();
+    if (start_fit) m.analysis->start_fit();
 }
 
 }  // namespace wayward::viewer

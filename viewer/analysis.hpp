@@ -144,4 +144,8 @@ private:
     void take_solution(Solution s, SolutionSource from, ViewerControls* controls);
 };
 
+// Gives a trainee model its Analysis (the app and tests call this after load_model; author models get none):
+// reads DIR/solution.toml if it belongs to the exercise and, if `start_fit`, starts the known-bodies fit.
+void attach_analysis(ViewerModel& model, bool start_fit = true);
+
 }  // namespace wayward::viewer

@@ -10,6 +10,7 @@
 #include <cstdio>
 
 #include "sim/physics/geometry.hpp"
+#include "sim/score/luck_intervals.hpp"
 #include "sim/base/units.hpp"
 #include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
@@ -361,17 +362,11 @@ private:
             const bool solver = sp == (s.solver ? &*s.solver : nullptr);
             const sf::Color col = solver ? palette::solution : palette::prediction;
             std::vector<double> xs, ys;
-            bool inside = false;
-            double from = 0;
             for (const LuckPoint& l : sp->score.luck) {
                 xs.push_back(l.year);
                 ys.push_back(std::max(l.separation_arcmin, 1e-3));
-                const bool in = l.separation_arcmin <= field;
-                if (in && !inside) from = l.year;
-                if (!in && inside) plot.x_band(from, l.year, im_color(col, 40));
-                inside = in;
             }
-            if (inside) plot.x_band(from, xs.back(), im_color(col, 40));
+            for (const Interval& in : inside_field_intervals(sp->score)) plot.x_band(in.from, in.to, im_color(col, 40));
             plot.line(xs, ys, im_color(col), 2.0f);
             legend.push_back({std::string(solver ? "solver" : "you") + (sp->score.luck_from_track ? " (its predicted track)" : " (fixed point)"),
                               im_color(col), Marker::circle, true, true});
