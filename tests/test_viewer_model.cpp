@@ -12,6 +12,7 @@
 #include "sim/physics/geometry.hpp"
 #include "sim/base/units.hpp"
 #include "test_helpers.hpp"
+#include "viewer_events.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/fonts.hpp"
 #include "viewer/model.hpp"
@@ -19,37 +20,13 @@
 
 using namespace wayward;
 using namespace wayward::viewer;
+using namespace wayward::testing;
 
 namespace {
 
 const ViewerModel* default_model() {
     static const LoadOutcome loaded = load_model(wayward::testing::source_path("scenarios/default.toml"), LoadOptions{});
     return loaded.model ? &*loaded.model : nullptr;
-}
-
-sf::Event press(sf::Mouse::Button b, int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseButtonPressed;
-    e.mouseButton = {b, x, y};
-    return e;
-}
-sf::Event release(sf::Mouse::Button b, int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseButtonReleased;
-    e.mouseButton = {b, x, y};
-    return e;
-}
-sf::Event move(int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseMoved;
-    e.mouseMove = {x, y};
-    return e;
-}
-sf::Event wheel(float delta, int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseWheelScrolled;
-    e.mouseWheelScroll = {sf::Mouse::VerticalWheel, delta, x, y};
-    return e;
 }
 
 }  // namespace
@@ -151,10 +128,10 @@ TEST_CASE("sky panel: click places the prediction at the current epoch, drag set
     CHECK(c.marker.epoch_days == doctest::Approx(1234.5));
     CHECK(c.marker.radius == doctest::Approx(m->scenario.plan.field_radius_deg * deg));  // the plan's field to start
     CHECK(m->field_radius() == doctest::Approx(m->scenario.plan.field_radius_deg * deg));
-    sky->on_mouse(move(550, 270), canvas, c, *m);
+    sky->on_mouse(move_event(550, 270), canvas, c, *m);
     CHECK(c.marker.radius == doctest::Approx(50.0 / scale).epsilon(1e-9));
     sky->on_mouse(release(sf::Mouse::Left, 550, 270), canvas, c, *m);
-    sky->on_mouse(move(550, 100), canvas, c, *m);  // no button: nothing changes
+    sky->on_mouse(move_event(550, 100), canvas, c, *m);  // no button: nothing changes
     CHECK(c.marker.radius == doctest::Approx(50.0 / scale).epsilon(1e-9));
     // A new click moves the marker (longitude grows to the left) and keeps the radius.
     c.time_days = 2000.0;
@@ -173,7 +150,7 @@ TEST_CASE("sky panel: right-drag pans, the wheel zooms about the cursor") {
     const sf::FloatRect canvas(100, 20, 900, 600);
     const double scale = 900.0 / two_pi;
     sky->on_mouse(press(sf::Mouse::Right, 550, 320), canvas, c, *m);
-    sky->on_mouse(move(650, 300), canvas, c, *m);
+    sky->on_mouse(move_event(650, 300), canvas, c, *m);
     sky->on_mouse(release(sf::Mouse::Right, 650, 300), canvas, c, *m);
     CHECK_FALSE(c.marker.placed);
     CHECK(c.sky.center_lon == doctest::Approx(pi + 100.0 / scale));  // the sky follows the mouse
@@ -187,7 +164,7 @@ TEST_CASE("sky panel: right-drag pans, the wheel zooms about the cursor") {
     };
     double lon0, lat0, lon1, lat1;
     under(800, 150, lon0, lat0);
-    sky->on_mouse(wheel(2.0f, 800, 150), canvas, c, *m);
+    sky->on_mouse(wheel_event(sf::Mouse::VerticalWheel, 2.0f, 800, 150), canvas, c, *m);
     CHECK(c.sky.zoom == doctest::Approx(1.15 * 1.15));
     under(800, 150, lon1, lat1);
     CHECK(std::abs(wrap_pi(lon1 - lon0)) < 1e-6);
@@ -201,16 +178,16 @@ TEST_CASE("system panel: dragging pans with the mouse, the wheel zooms towards t
     ViewerControls c;
     const sf::FloatRect canvas(0, 0, 800, 600);
     plan->on_mouse(press(sf::Mouse::Left, 400, 300), canvas, c, *m);
-    plan->on_mouse(move(500, 250), canvas, c, *m);
+    plan->on_mouse(move_event(500, 250), canvas, c, *m);
     plan->on_mouse(release(sf::Mouse::Left, 500, 250), canvas, c, *m);
     CHECK(c.plan.center_x < 0.0);  // content moved right and up: the view centre moved left and down
     CHECK(c.plan.center_y < 0.0);
     const double cx = c.plan.center_x, cy = c.plan.center_y;
-    plan->on_mouse(wheel(1.0f, 400, 300), canvas, c, *m);  // at the centre: the centre stays
+    plan->on_mouse(wheel_event(sf::Mouse::VerticalWheel, 1.0f, 400, 300), canvas, c, *m);  // at the centre: the centre stays
     CHECK(c.plan.zoom == doctest::Approx(1.15));
     CHECK(c.plan.center_x == doctest::Approx(cx));
     CHECK(c.plan.center_y == doctest::Approx(cy));
-    plan->on_mouse(wheel(1.0f, 700, 300), canvas, c, *m);  // right of centre: the centre moves right
+    plan->on_mouse(wheel_event(sf::Mouse::VerticalWheel, 1.0f, 700, 300), canvas, c, *m);  // right of centre: the centre moves right
     CHECK(c.plan.center_x > cx);
     CHECK(c.plan.center_y == doctest::Approx(cy));
     plan->reset_view(c);

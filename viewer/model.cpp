@@ -65,25 +65,34 @@ void regenerate_stars(ViewerModel& model, long count, double faint_mag) {
 
 namespace {
 
+// A system body as the panels see it; mass, a, e and the two-body period from the elements it was given with.
+BodyView body_view(const System& s, std::size_t i) {
+    BodyView b;
+    b.name = s.bodies[i].name;
+    b.role = s.bodies[i].role;
+    b.observer = s.bodies[i].observer;
+    b.index = i;
+    b.source = i;
+    return b;
+}
+
+void set_orbit(BodyView& b, double mass, const Elements& el, double star_mass) {
+    b.mass = mass;
+    b.a_au = el.semi_major_axis;
+    b.e = el.eccentricity;
+    if (b.e < 1.0) b.period_days = orbital_period(b.a_au, gm_from_mass(star_mass + mass));
+}
+
+// Author mode: the drawn system's bodies, with their drawn elements.
 void fill_bodies(ViewerModel& m) {
     const System& s = m.truth.system;
     m.bodies.clear();
     for (std::size_t i = 0; i < s.size(); ++i) {
-        BodyView b;
-        b.name = s.bodies[i].name;
-        b.role = s.bodies[i].role;
-        b.observer = s.bodies[i].observer;
-        b.index = i;
-        b.source = i;
-        if (i == 0) {
-            b.mass = m.truth.star_mass;
-        } else {
+        BodyView b = body_view(s, i);
+        if (i == 0) b.mass = m.truth.star_mass;
+        else {
             const DrawnBody& d = m.truth.bodies[i - 1];  // truth.bodies lists the planets in system order
-            b.mass = d.mass;
-            b.a_au = d.elements.semi_major_axis;
-            b.e = d.elements.eccentricity;
-            if (d.elements.eccentricity < 1.0)
-                b.period_days = orbital_period(d.elements.semi_major_axis, gm_from_mass(m.truth.star_mass + d.mass));
+            set_orbit(b, d.mass, d.elements, m.truth.star_mass);
         }
         m.bodies.push_back(b);
     }
@@ -94,20 +103,11 @@ void fill_bodies_from_brief(ViewerModel& m, const System& s) {
     const Brief& brief = m.exercise->brief;
     m.bodies.clear();
     for (std::size_t i = 0; i < s.size(); ++i) {
-        BodyView b;
-        b.name = s.bodies[i].name;
-        b.role = s.bodies[i].role;
-        b.observer = s.bodies[i].observer;
-        b.index = i;
-        b.source = i;
-        if (i == 0) {
-            b.mass = brief.star_mass;
-        } else {
+        BodyView b = body_view(s, i);
+        if (i == 0) b.mass = brief.star_mass;
+        else {
             const BriefPlanet& p = brief.planets[i - 1];  // known_model_system keeps the brief's order
-            b.mass = p.mass;
-            b.a_au = p.elements.semi_major_axis;
-            b.e = p.elements.eccentricity;
-            if (b.e < 1.0) b.period_days = orbital_period(b.a_au, gm_from_mass(brief.star_mass + p.mass));
+            set_orbit(b, p.mass, p.elements, brief.star_mass);
         }
         m.bodies.push_back(b);
     }

@@ -185,12 +185,9 @@ public:
         const ImVec2 lo(canvas.left, canvas.top), hi(canvas.left + canvas.width, canvas.top + canvas.height);
         const float ts = ctx.text_size, header = 64.0f;
         if (m.mode != ViewerMode::trainee) {
-            list.PushClipRect(lo, hi, true);
-            title_block(list, canvas, ctx, "");
-            draw_card(list, ctx.fonts, ts, canvas, palette::text_dim, "An exercise folder is needed",
-                      "The solver works on an exercise's observations. Make one with `wayward new scenarios/default.toml --out DIR` "
-                      "and open DIR in the viewer.");
-            list.PopClipRect();
+            draw_exercise_needed(list, ctx.fonts, ts, canvas, "Solve: the hidden body from the observations",
+                                 "The solver works on an exercise's observations. Make one with `wayward new scenarios/default.toml --out DIR` "
+                                 "and open DIR in the viewer.");
             return;
         }
         const Analysis& a = *m.analysis;
@@ -245,12 +242,7 @@ private:
     std::string save_error_;
 
     void title_block(ImDrawList& list, const sf::FloatRect& canvas, const DrawContext& ctx, const std::string& sub) {
-        const float pad = 16.0f, ts = ctx.text_size;
-        draw_text(list, ctx.fonts, ts * 1.35f, ImVec2(canvas.left + pad, canvas.top + pad - 4.0f), im_color(palette::text),
-                  "Solve: the hidden body from the observations", Align::left, true);
-        if (!sub.empty())
-            draw_text(list, ctx.fonts, ts * 0.85f, ImVec2(canvas.left + pad, canvas.top + pad + ts * 1.45f), im_color(palette::text_dim), sub,
-                      Align::left, true);
+        draw_panel_title(list, ctx.fonts, ctx.text_size, canvas, "Solve: the hidden body from the observations", sub);
     }
 
     void sky_legend(ImDrawList& list, const sf::FloatRect& sky, const ViewerControls& c, const DrawContext& ctx, const Prediction& p,
