@@ -54,8 +54,15 @@ public:
             return;
         }
         Analysis& a = *m.analysis;
-        SolveForm& f = a.form;
         const bool running = a.solve_job.running();
+        priors_form(a, m, running);
+        run_controls(a, running);
+        solution_section(c, m, a);
+    }
+
+    // The solver's priors (disabled while it runs) and the `wayward solve` command they amount to.
+    void priors_form(Analysis& a, const ViewerModel& m, bool running) {
+        SolveForm& f = a.form;
         ImGui::BeginDisabled(running);
         ImGui::SetNextItemWidth(-110.0f);
         ImGui::Combo("distance", &f.distance, distance_names, 4);
@@ -96,7 +103,10 @@ public:
         ImGui::PushTextWrapPos(0.0f);
         ImGui::TextDisabled("= %s", solve_command(f, "DIR", m.search_epoch_year()).c_str());
         ImGui::PopTextWrapPos();
+    }
 
+    // Run or cancel, the run's progress, and why a run or solution.toml was refused.
+    void run_controls(Analysis& a, bool running) {
         if (!running) {
             ImGui::BeginDisabled(a.fit_job.running());
             if (ImGui::Button("Run the solver", ImVec2(140, 0))) a.start_solve();
@@ -114,7 +124,10 @@ public:
         if (!a.solution_file_problem.empty())
             ImGui::TextColored(palette::to_imgui(palette::unobservable), "solution.toml not used: %s", a.solution_file_problem.c_str());
         ImGui::PopTextWrapPos();
+    }
 
+    // The solution: where it came from, saving it, the local minima and the selected one's details.
+    void solution_section(ViewerControls& c, const ViewerModel& m, Analysis& a) {
         if (!a.solution) return;
         const Solution& s = *a.solution;
         ImGui::Separator();
