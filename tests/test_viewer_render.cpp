@@ -25,12 +25,9 @@ using namespace wayward::testing::pixels;
 using wayward::testing::require_display;
 using wayward::testing::Shot;
 
-const fs::path& shot_dir() {
-    static const fs::path dir = wayward::testing::fresh_shot_dir("wayward-viewer-render");
-    return dir;
-}
-
-Shot screenshot(const std::string& args, const std::string& name) { return wayward::testing::take_screenshot(shot_dir(), args, name); }
+const wayward::testing::ShotFolder shots("wayward-viewer-render");
+const fs::path& shot_dir() { return shots.dir(); }
+Shot screenshot(const std::string& args, const std::string& name) { return shots.take(args, name); }
 
 std::string scenario() { return wayward::testing::source_path("scenarios/default.toml"); }
 

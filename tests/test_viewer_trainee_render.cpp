@@ -27,12 +27,9 @@ using namespace wayward::testing::pixels;
 using wayward::testing::require_display;
 using wayward::testing::Shot;
 
-const fs::path& shot_dir() {
-    static const fs::path dir = wayward::testing::fresh_shot_dir("wayward-viewer-trainee-render");
-    return dir;
-}
-
-Shot screenshot(const std::string& args, const std::string& name) { return wayward::testing::take_screenshot(shot_dir(), args, name); }
+const wayward::testing::ShotFolder shots("wayward-viewer-trainee-render");
+const fs::path& shot_dir() { return shots.dir(); }
+Shot screenshot(const std::string& args, const std::string& name) { return shots.take(args, name); }
 
 std::string make_exercise(const std::string& name) {
     const fs::path dir = shot_dir() / name;

@@ -7,6 +7,7 @@
 #include <filesystem>
 #include <set>
 #include <string>
+#include <utility>
 
 #include <SFML/Graphics/Image.hpp>
 
@@ -40,6 +41,21 @@ inline Shot take_screenshot(const std::filesystem::path& dir, const std::string&
     s.loaded = std::filesystem::exists(png) && s.image.loadFromFile(png.string());
     return s;
 }
+
+// The screenshots of one test file, in a scratch folder made on first use.
+class ShotFolder {
+public:
+    explicit ShotFolder(std::string tag) : tag_(std::move(tag)) {}
+    const std::filesystem::path& dir() const {
+        if (dir_.empty()) dir_ = fresh_shot_dir(tag_);
+        return dir_;
+    }
+    Shot take(const std::string& args, const std::string& name) const { return take_screenshot(dir(), args, name); }
+
+private:
+    std::string tag_;
+    mutable std::filesystem::path dir_;
+};
 
 inline void require_display() {
     const char* d = std::getenv("DISPLAY");
