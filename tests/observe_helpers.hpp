@@ -1,5 +1,5 @@
 // Shared by the observation, plausibility and exercise-folder tests: a small scenario with two eras of noisy
-// observations (the noise-statistics scenario), a one-place text replacement, file reading and fresh temp folders.
+// observations (the noise-statistics scenario), a one-place text replacement and fresh temp folders.
 #pragma once
 
 #include <filesystem>
@@ -10,6 +10,8 @@
 #include <unistd.h>
 
 #include <doctest/doctest.h>
+
+#include "test_helpers.hpp"
 
 namespace wayward::testing {
 
@@ -82,12 +84,6 @@ inline std::string replace(std::string s, const std::string& from, const std::st
     return s.replace(pos, from.size(), to);
 }
 
-inline std::string read(const fs::path& p) {
-    std::ifstream in(p, std::ios::binary);
-    std::ostringstream ss;
-    ss << in.rdbuf();
-    return ss.str();
-}
 
 inline fs::path fresh_dir(const std::string& name) {
     const fs::path p = fs::temp_directory_path() / ("wayward-test-" + name + "-" + std::to_string(::getpid()));
