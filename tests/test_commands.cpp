@@ -28,14 +28,8 @@ fs::path make_dir(const std::string& name, std::uint64_t seed = 1) {
     return p;
 }
 
-std::string read(const fs::path& p) {
-    std::ifstream in(p, std::ios::binary);
-    std::ostringstream ss;
-    ss << in.rdbuf();
-    return ss.str();
-}
-
-void write(const fs::path& p, const std::string& s) { std::ofstream(p, std::ios::binary) << s; }
+using testing::read;
+using testing::write;
 
 double number_after(const std::string& text, const std::string& label) {
     const auto pos = text.find(label);

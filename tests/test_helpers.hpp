@@ -1,12 +1,25 @@
-// Small helpers shared by the tests: paths and running the CLI.
+// Small helpers shared by the tests: paths, whole-file reads and writes, and running the CLI.
 #pragma once
 
 #include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
 #include <string>
 
 namespace wayward::testing {
 
 inline std::string source_path(const std::string& rel) { return std::string(WAYWARD_SOURCE_DIR) + "/" + rel; }
+
+// The whole file as bytes (empty if it cannot be read).
+inline std::string read(const std::filesystem::path& p) {
+    std::ifstream in(p, std::ios::binary);
+    std::ostringstream ss;
+    ss << in.rdbuf();
+    return ss.str();
+}
+
+inline void write(const std::filesystem::path& p, const std::string& text) { std::ofstream(p, std::ios::binary) << text; }
 
 struct CommandResult {
     int status = -1;

@@ -7,8 +7,10 @@
 #include <cstring>
 
 #include "viewer/imgui_sfml_bridge.hpp"
+#include "viewer_events.hpp"
 
 using namespace wayward::viewer;
+using namespace wayward::testing;
 
 namespace {
 
@@ -31,33 +33,6 @@ struct ImGuiHarness {
     void send(const sf::Event& e) { bridge_process_event(bridge, e); }
 };
 
-sf::Event key_event(sf::Event::EventType type, sf::Keyboard::Key code) {
-    sf::Event e;
-    e.type = type;
-    e.key = {code, false, false, false, false};
-    return e;
-}
-
-sf::Event button_event(sf::Event::EventType type, sf::Mouse::Button b, int x, int y) {
-    sf::Event e;
-    e.type = type;
-    e.mouseButton = {b, x, y};
-    return e;
-}
-
-sf::Event move_event(int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseMoved;
-    e.mouseMove = {x, y};
-    return e;
-}
-
-sf::Event wheel_event(sf::Mouse::Wheel wheel, float delta, int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseWheelScrolled;
-    e.mouseWheelScroll = {wheel, delta, x, y};
-    return e;
-}
 
 sf::Event text_event(sf::Uint32 c) {
     sf::Event e;

@@ -1,4 +1,4 @@
-// The viewer's non-drawing parts: the star field (sim/starfield), the calendar-style dates, the model built from
+// The viewer's non-drawing parts: the calendar-style dates, the model built from
 // a scenario (its samples must be sim's numbers), load errors, and the panels' mouse handling (placing and
 // sizing the prediction marker, panning, zooming about the cursor). No window needed.
 #include <doctest/doctest.h>
@@ -10,9 +10,9 @@
 #include <SFML/Window/Event.hpp>
 
 #include "sim/physics/geometry.hpp"
-#include "sim/search/starfield.hpp"
 #include "sim/base/units.hpp"
 #include "test_helpers.hpp"
+#include "viewer_events.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/fonts.hpp"
 #include "viewer/model.hpp"
@@ -20,6 +20,7 @@
 
 using namespace wayward;
 using namespace wayward::viewer;
+using namespace wayward::testing;
 
 namespace {
 
@@ -28,128 +29,9 @@ const ViewerModel* default_model() {
     return loaded.model ? &*loaded.model : nullptr;
 }
 
-sf::Event press(sf::Mouse::Button b, int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseButtonPressed;
-    e.mouseButton = {b, x, y};
-    return e;
-}
-sf::Event release(sf::Mouse::Button b, int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseButtonReleased;
-    e.mouseButton = {b, x, y};
-    return e;
-}
-sf::Event move(int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseMoved;
-    e.mouseMove = {x, y};
-    return e;
-}
-sf::Event wheel(float delta, int x, int y) {
-    sf::Event e;
-    e.type = sf::Event::MouseWheelScrolled;
-    e.mouseWheelScroll = {sf::Mouse::VerticalWheel, delta, x, y};
-    return e;
-}
-
-// Fraction of stars brighter than m under the law between bright and faint (the CDF the generator inverts).
-double law_fraction(double slope, double bright, double faint, double m) {
-    return (std::pow(10.0, slope * (m - bright)) - 1.0) / (std::pow(10.0, slope * (faint - bright)) - 1.0);
-}
-
 }  // namespace
 
 TEST_SUITE("viewer_model") {
-
-TEST_CASE("star field: the same spec gives the same stars, another seed other stars") {
-    StarFieldSpec spec;
-    spec.count = 500;
-    const auto a = generate_star_field(spec), b = generate_star_field(spec);
-    spec.seed = 2;
-    const auto c = generate_star_field(spec);
-    REQUIRE(a.size() == 500);
-    REQUIRE(c.size() == 500);
-    bool same = true, differs = false;
-    for (std::size_t k = 0; k < a.size(); ++k) {
-        same = same && a[k].lon == b[k].lon && a[k].lat == b[k].lat && a[k].mag == b[k].mag;
-        differs = differs || a[k].lon != c[k].lon;
-    }
-    CHECK(same);
-    CHECK(differs);
-}
-
-TEST_CASE("star field: the count law's defaults and the sphere's area") {
-    StarCountLaw law;
-    // About 5000 stars brighter than magnitude 6 over the whole sky (common practice, from memory).
-    StarFieldSpec spec;
-    spec.bright_mag = -30.0;
-    spec.faint_mag = 6.0;
-    CHECK(expected_star_count(spec) > 4500.0);
-    CHECK(expected_star_count(spec) < 5500.0);
-    // 4 pi steradians = 41252.96 square degrees (geometry).
-    CHECK(field_area_square_degrees(spec) == doctest::Approx(41252.96125).epsilon(1e-9));
-    // Growth per magnitude is the slope in dex.
-    CHECK(std::log10(law.per_square_degree(8.0) / law.per_square_degree(7.0)) == doctest::Approx(law.slope));
-    spec.count = -1;
-    spec.bright_mag = -1.0;
-    spec.faint_mag = 7.0;
-    CHECK(static_cast<double>(generate_star_field(spec).size()) == doctest::Approx(std::round(expected_star_count(spec))));
-}
-
-TEST_CASE("star field: magnitudes follow the cumulative count law") {
-    StarFieldSpec spec;
-    spec.count = 20000;
-    spec.bright_mag = -1.0;
-    spec.faint_mag = 7.0;
-    const auto stars = generate_star_field(spec);
-    for (double m : {3.0, 5.0, 6.0}) {
-        const double p = law_fraction(spec.law.slope, spec.bright_mag, spec.faint_mag, m);
-        double n = 0;
-        for (const Star& s : stars) n += s.mag < m ? 1.0 : 0.0;
-        const double sigma = std::sqrt(p * (1.0 - p) / static_cast<double>(stars.size()));  // binomial
-        CHECK(std::abs(n / static_cast<double>(stars.size()) - p) < 4.0 * sigma);
-    }
-    double lo = 1e9, hi = -1e9;
-    for (const Star& s : stars) lo = std::min(lo, s.mag), hi = std::max(hi, s.mag);
-    CHECK(lo >= spec.bright_mag);
-    CHECK(hi <= spec.faint_mag);
-    CHECK(magnitude_at_fraction(spec.law, -1.0, 7.0, 0.0) == doctest::Approx(-1.0));
-    CHECK(magnitude_at_fraction(spec.law, -1.0, 7.0, 1.0) == doctest::Approx(7.0));
-}
-
-TEST_CASE("star field: uniform on the sphere, and inside its box") {
-    StarFieldSpec spec;
-    spec.count = 20000;
-    const auto sphere = generate_star_field(spec);
-    double band = 0;
-    for (const Star& s : sphere) band += std::abs(s.lat) < 30.0 * deg ? 1.0 : 0.0;
-    // Uniform in area: the fraction within 30 degrees of the equator is sin 30 = 1/2.
-    CHECK(std::abs(band / 20000.0 - 0.5) < 4.0 * std::sqrt(0.25 / 20000.0));
-
-    spec.whole_sphere = false;
-    spec.lon_min = 6.0;  // runs past 2 pi: the box wraps through longitude 0
-    spec.lon_max = 6.6;
-    spec.lat_min = -0.2;
-    spec.lat_max = 0.1;
-    spec.count = 3000;
-    for (const Star& s : generate_star_field(spec)) {
-        const bool in_lon = s.lon >= 6.0 || s.lon <= 6.6 - two_pi;
-        CHECK(in_lon);
-        CHECK(s.lat >= -0.2);
-        CHECK(s.lat <= 0.1);
-    }
-    spec.faint_mag = spec.bright_mag;
-    CHECK_THROWS_AS(generate_star_field(spec), std::invalid_argument);
-}
-
-TEST_CASE("small circles lie at their radius from the centre, also around a pole") {
-    for (const auto& [lon, lat, r] : {std::tuple{0.3, 0.2, 0.4}, std::tuple{5.0, 1.5, 0.2}, std::tuple{2.0, -0.4, 0.02}}) {
-        const auto ring = small_circle(lon, lat, r, 64);
-        REQUIRE(ring.size() == 64);
-        for (const SkyPoint& p : ring) CHECK(separation(lon, lat, p.lon, p.lat) == doctest::Approx(r).epsilon(1e-12));
-    }
-}
 
 TEST_CASE("calendar-style dates from decimal years") {
     // J2000.0 is JD 2451545.0 = 2000 January 1.5 (the IAU definition of the epoch).
@@ -246,10 +128,10 @@ TEST_CASE("sky panel: click places the prediction at the current epoch, drag set
     CHECK(c.marker.epoch_days == doctest::Approx(1234.5));
     CHECK(c.marker.radius == doctest::Approx(m->scenario.plan.field_radius_deg * deg));  // the plan's field to start
     CHECK(m->field_radius() == doctest::Approx(m->scenario.plan.field_radius_deg * deg));
-    sky->on_mouse(move(550, 270), canvas, c, *m);
+    sky->on_mouse(move_event(550, 270), canvas, c, *m);
     CHECK(c.marker.radius == doctest::Approx(50.0 / scale).epsilon(1e-9));
     sky->on_mouse(release(sf::Mouse::Left, 550, 270), canvas, c, *m);
-    sky->on_mouse(move(550, 100), canvas, c, *m);  // no button: nothing changes
+    sky->on_mouse(move_event(550, 100), canvas, c, *m);  // no button: nothing changes
     CHECK(c.marker.radius == doctest::Approx(50.0 / scale).epsilon(1e-9));
     // A new click moves the marker (longitude grows to the left) and keeps the radius.
     c.time_days = 2000.0;
@@ -268,7 +150,7 @@ TEST_CASE("sky panel: right-drag pans, the wheel zooms about the cursor") {
     const sf::FloatRect canvas(100, 20, 900, 600);
     const double scale = 900.0 / two_pi;
     sky->on_mouse(press(sf::Mouse::Right, 550, 320), canvas, c, *m);
-    sky->on_mouse(move(650, 300), canvas, c, *m);
+    sky->on_mouse(move_event(650, 300), canvas, c, *m);
     sky->on_mouse(release(sf::Mouse::Right, 650, 300), canvas, c, *m);
     CHECK_FALSE(c.marker.placed);
     CHECK(c.sky.center_lon == doctest::Approx(pi + 100.0 / scale));  // the sky follows the mouse
@@ -282,7 +164,7 @@ TEST_CASE("sky panel: right-drag pans, the wheel zooms about the cursor") {
     };
     double lon0, lat0, lon1, lat1;
     under(800, 150, lon0, lat0);
-    sky->on_mouse(wheel(2.0f, 800, 150), canvas, c, *m);
+    sky->on_mouse(wheel_event(sf::Mouse::VerticalWheel, 2.0f, 800, 150), canvas, c, *m);
     CHECK(c.sky.zoom == doctest::Approx(1.15 * 1.15));
     under(800, 150, lon1, lat1);
     CHECK(std::abs(wrap_pi(lon1 - lon0)) < 1e-6);
@@ -296,16 +178,16 @@ TEST_CASE("system panel: dragging pans with the mouse, the wheel zooms towards t
     ViewerControls c;
     const sf::FloatRect canvas(0, 0, 800, 600);
     plan->on_mouse(press(sf::Mouse::Left, 400, 300), canvas, c, *m);
-    plan->on_mouse(move(500, 250), canvas, c, *m);
+    plan->on_mouse(move_event(500, 250), canvas, c, *m);
     plan->on_mouse(release(sf::Mouse::Left, 500, 250), canvas, c, *m);
     CHECK(c.plan.center_x < 0.0);  // content moved right and up: the view centre moved left and down
     CHECK(c.plan.center_y < 0.0);
     const double cx = c.plan.center_x, cy = c.plan.center_y;
-    plan->on_mouse(wheel(1.0f, 400, 300), canvas, c, *m);  // at the centre: the centre stays
+    plan->on_mouse(wheel_event(sf::Mouse::VerticalWheel, 1.0f, 400, 300), canvas, c, *m);  // at the centre: the centre stays
     CHECK(c.plan.zoom == doctest::Approx(1.15));
     CHECK(c.plan.center_x == doctest::Approx(cx));
     CHECK(c.plan.center_y == doctest::Approx(cy));
-    plan->on_mouse(wheel(1.0f, 700, 300), canvas, c, *m);  // right of centre: the centre moves right
+    plan->on_mouse(wheel_event(sf::Mouse::VerticalWheel, 1.0f, 700, 300), canvas, c, *m);  // right of centre: the centre moves right
     CHECK(c.plan.center_x > cx);
     CHECK(c.plan.center_y == doctest::Approx(cy));
     plan->reset_view(c);

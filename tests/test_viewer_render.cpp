@@ -21,75 +21,15 @@ namespace {
 
 namespace fs = std::filesystem;
 
+using namespace wayward::testing::pixels;
+using wayward::testing::require_display;
 using wayward::testing::Shot;
 
-const fs::path& shot_dir() {
-    static const fs::path dir = wayward::testing::fresh_shot_dir("wayward-viewer-render");
-    return dir;
-}
-
-Shot screenshot(const std::string& args, const std::string& name) { return wayward::testing::take_screenshot(shot_dir(), args, name); }
+const wayward::testing::ShotFolder shots("wayward-viewer-render");
+const fs::path& shot_dir() { return shots.dir(); }
+Shot screenshot(const std::string& args, const std::string& name) { return shots.take(args, name); }
 
 std::string scenario() { return wayward::testing::source_path("scenarios/default.toml"); }
-
-bool near(sf::Color p, sf::Color c, int tol) {
-    return std::abs(p.r - c.r) <= tol && std::abs(p.g - c.g) <= tol && std::abs(p.b - c.b) <= tol;
-}
-
-// Whether a pixel belongs to the drawing: right of the sidebar (min(350 px, half the width), viewer/app.cpp)
-// and outside the top-right and bottom-right corners, where the panels put their legends.
-bool in_drawing(const sf::Image& img, unsigned x, unsigned y) {
-    const sf::Vector2u size = img.getSize();
-    if (x < std::min(350u, size.x / 2)) return false;
-    const bool right_corner = x + 240 > size.x;
-    return !(right_corner && (y < 140 || y + 140 > size.y));
-}
-
-// Pixels within `tol` (per channel) of `c`, optionally only in the drawing.
-int count_near(const sf::Image& img, sf::Color c, int tol, bool drawing_only = false) {
-    int n = 0;
-    const sf::Vector2u size = img.getSize();
-    for (unsigned y = 0; y < size.y; ++y)
-        for (unsigned x = 0; x < size.x; ++x)
-            n += near(img.getPixel(x, y), c, tol) && (!drawing_only || in_drawing(img, x, y));
-    return n;
-}
-
-// Pixels near `c` in `a` and not in `b`: something of that colour moved.
-int count_moved(const sf::Image& a, const sf::Image& b, sf::Color c, int tol) {
-    if (a.getSize() != b.getSize()) return 0;
-    int n = 0;
-    for (unsigned y = 0; y < a.getSize().y; ++y)
-        for (unsigned x = 0; x < a.getSize().x; ++x) n += near(a.getPixel(x, y), c, tol) && !near(b.getPixel(x, y), c, tol);
-    return n;
-}
-
-std::size_t distinct_colours(const sf::Image& img) {
-    std::set<sf::Uint32> colours;
-    const sf::Vector2u size = img.getSize();
-    for (unsigned y = 0; y < size.y; y += 2)
-        for (unsigned x = 0; x < size.x; x += 2) colours.insert(img.getPixel(x, y).toInteger());
-    return colours.size();
-}
-
-double differing_fraction(const sf::Image& a, const sf::Image& b) {
-    if (a.getSize() != b.getSize()) return 1.0;
-    const sf::Vector2u size = a.getSize();
-    double n = 0;
-    for (unsigned y = 0; y < size.y; ++y)
-        for (unsigned x = 0; x < size.x; ++x) n += a.getPixel(x, y) != b.getPixel(x, y);
-    return n / (static_cast<double>(size.x) * size.y);
-}
-
-// The Okabe-Ito colours the viewer gives the roles (viewer/palette.hpp).
-const sf::Color star_yellow{240, 228, 66};
-const sf::Color hidden_vermillion{213, 94, 0};
-const sf::Color known_sky_blue{86, 180, 233};
-
-void require_display() {
-    const char* d = std::getenv("DISPLAY");
-    REQUIRE_MESSAGE((d && *d), "the render tests need an X display: run them under xvfb-run");
-}
 
 }  // namespace
 

@@ -65,20 +65,13 @@ const std::string& quick_exercise() {
     return dir;
 }
 
-std::string read_file(const std::string& path) {
-    std::ifstream in(path, std::ios::binary);
-    std::ostringstream s;
-    s << in.rdbuf();
-    return s.str();
-}
-
-void write_file(const std::string& path, const std::string& text) { std::ofstream(path, std::ios::binary) << text; }
 
 LoadOutcome open(const std::string& dir, bool start = true) {
     LoadOptions o;
     o.star_count = 100;
-    o.start_work = start;
-    return load_model(dir, o);
+    LoadOutcome loaded = load_model(dir, o);
+    if (loaded.model) attach_analysis(*loaded.model, start);
+    return loaded;
 }
 
 }  // namespace
@@ -143,12 +136,12 @@ TEST_CASE("bad exercise folders come back as messages naming the file and line")
 
     const std::string dir = make_exercise("scenarios/quick.toml", "corrupt");
     const std::string obs = dir + "/observations.csv";
-    std::string text = read_file(obs);
+    std::string text = wayward::testing::read(obs);
     // Replace the fifth line (a data row) with a row of two cells.
     std::size_t at = 0;
     for (int k = 0; k < 4; ++k) at = text.find('\n', at) + 1;
     text.replace(at, text.find('\n', at) - at, "1234.5,garbage");
-    write_file(obs, text);
+    wayward::testing::write(obs, text);
     const LoadOutcome corrupt = open(dir);
     CHECK_FALSE(corrupt.model);
     CHECK(corrupt.error.find("observations.csv:5") != std::string::npos);
@@ -179,21 +172,21 @@ TEST_CASE("the known-bodies fit runs in a worker and gives sim's residuals; the 
     std::string line;
     while (std::getline(lines, line)) {
         for (const ResidualSummaryRow& r : residual_summary(*a.fit)) {
-            const std::string prefix = "  " + r.planet;
-            if (line.rfind(prefix, 0) != 0 || line.find(r.era) == std::string::npos) continue;
-            std::istringstream rest(line.substr(line.find(r.era) + r.era.size()));
+            const std::string prefix = "  " + r.planet_name;
+            if (line.rfind(prefix, 0) != 0 || line.find(r.era_name) == std::string::npos) continue;
+            std::istringstream rest(line.substr(line.find(r.era_name) + r.era_name.size()));
             double nv, l, b, sig, out;
             rest >> nv >> l >> b >> sig;
             rest.ignore(1);  // the '*' of an estimated sigma, or a space
             rest >> out;
-            cli[r.planet + " " + r.era] = {nv, l, b, out};
+            cli[r.planet_name + " " + r.era_name] = {nv, l, b, out};
         }
     }
     const auto rows = residual_summary(*a.fit);
     REQUIRE(rows.size() == cli.size());
     for (const ResidualSummaryRow& r : rows) {
-        CAPTURE(r.planet + " " + r.era);
-        const auto& v = cli[r.planet + " " + r.era];
+        CAPTURE(r.planet_name + " " + r.era_name);
+        const auto& v = cli[r.planet_name + " " + r.era_name];
         CHECK(static_cast<double>(r.kept) == v[0]);
         CHECK(std::abs(r.rms_lon - v[1]) <= 0.0005);
         CHECK(std::abs(r.rms_lat - v[2]) <= 0.0005);
@@ -382,7 +375,7 @@ TEST_CASE("the solver runs in a worker with progress, gives sim's solution, can 
 TEST_CASE("a changed answer key is refused and reveals nothing; the intact key reveals sim's truth and sim's scores") {
     const std::string dir = make_exercise("scenarios/default.toml", "reveal");
     const std::string key_path = exercise_paths(dir).answer_key();
-    const std::string key_text = read_file(key_path);
+    const std::string key_text = wayward::testing::read(key_path);
     LoadOutcome loaded = open(dir, false);
     REQUIRE(loaded.model);
     ViewerModel& m = *loaded.model;
@@ -394,7 +387,7 @@ TEST_CASE("a changed answer key is refused and reveals nothing; the intact key r
     std::string changed = key_text;
     const std::size_t digit = changed.find_last_of("0123456789");
     changed[digit] = changed[digit] == '1' ? '2' : '1';
-    write_file(key_path, changed);
+    wayward::testing::write(key_path, changed);
     CHECK_FALSE(a.request_reveal(m));
     CHECK(a.reveal_error.find("SHA-256") != std::string::npos);
     REQUIRE(a.wait_idle(m, c));
@@ -404,7 +397,7 @@ TEST_CASE("a changed answer key is refused and reveals nothing; the intact key r
     CHECK_FALSE(a.scores);
 
     // Restored: revealed, with the hidden body from the key.
-    write_file(key_path, key_text);
+    wayward::testing::write(key_path, key_text);
     c.marker = PredictionMarker{true, 100.0 * deg, 1.0 * deg, m.days_at_year(1960.0), m.field_radius()};
     REQUIRE(a.request_reveal(m));
     REQUIRE(a.wait_idle(m, c));

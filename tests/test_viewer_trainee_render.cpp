@@ -23,14 +23,13 @@ namespace {
 
 namespace fs = std::filesystem;
 
+using namespace wayward::testing::pixels;
+using wayward::testing::require_display;
 using wayward::testing::Shot;
 
-const fs::path& shot_dir() {
-    static const fs::path dir = wayward::testing::fresh_shot_dir("wayward-viewer-trainee-render");
-    return dir;
-}
-
-Shot screenshot(const std::string& args, const std::string& name) { return wayward::testing::take_screenshot(shot_dir(), args, name); }
+const wayward::testing::ShotFolder shots("wayward-viewer-trainee-render");
+const fs::path& shot_dir() { return shots.dir(); }
+Shot screenshot(const std::string& args, const std::string& name) { return shots.take(args, name); }
 
 std::string make_exercise(const std::string& name) {
     const fs::path dir = shot_dir() / name;
@@ -49,54 +48,6 @@ const std::string& solved_exercise() {
         return d;
     }();
     return dir;
-}
-
-bool near(sf::Color p, sf::Color c, int tol) {
-    return std::abs(p.r - c.r) <= tol && std::abs(p.g - c.g) <= tol && std::abs(p.b - c.b) <= tol;
-}
-
-// Right of the sidebar (min(350 px, half the width), viewer/app.cpp) and outside the top-right corner, where
-// the sky and system panels put their legends (with a swatch of every colour they use).
-bool in_drawing(const sf::Image& img, unsigned x, unsigned y) {
-    const sf::Vector2u size = img.getSize();
-    if (x < std::min(350u, size.x / 2)) return false;
-    const bool right_corner = x + 240 > size.x;
-    return !(right_corner && (y < 140 || y + 140 > size.y));
-}
-
-int count_near(const sf::Image& img, sf::Color c, int tol, bool drawing_only) {
-    int n = 0;
-    const sf::Vector2u size = img.getSize();
-    for (unsigned y = 0; y < size.y; ++y)
-        for (unsigned x = 0; x < size.x; ++x) n += near(img.getPixel(x, y), c, tol) && (!drawing_only || in_drawing(img, x, y));
-    return n;
-}
-
-std::size_t distinct_colours(const sf::Image& img) {
-    std::set<sf::Uint32> colours;
-    for (unsigned y = 0; y < img.getSize().y; y += 2)
-        for (unsigned x = 0; x < img.getSize().x; x += 2) colours.insert(img.getPixel(x, y).toInteger());
-    return colours.size();
-}
-
-double differing_fraction(const sf::Image& a, const sf::Image& b) {
-    if (a.getSize() != b.getSize()) return 1.0;
-    double n = 0;
-    for (unsigned y = 0; y < a.getSize().y; ++y)
-        for (unsigned x = 0; x < a.getSize().x; ++x) n += a.getPixel(x, y) != b.getPixel(x, y);
-    return n / (static_cast<double>(a.getSize().x) * a.getSize().y);
-}
-
-// The Okabe-Ito colours of viewer/palette.hpp.
-const sf::Color hidden_vermillion{213, 94, 0};
-const sf::Color solver_blue{0, 114, 178};
-const sf::Color era_orange{230, 159, 0};
-const sf::Color era_green{0, 158, 115};
-const sf::Color refused_purple{204, 121, 167};
-
-void require_display() {
-    const char* d = std::getenv("DISPLAY");
-    REQUIRE_MESSAGE((d && *d), "the render tests need an X display: run them under xvfb-run");
 }
 
 }  // namespace

@@ -157,7 +157,7 @@ bool Analysis::request_reveal(const ViewerModel& model) {
     const std::vector<double> times = model.sample_times;
     reveal_job.start([brief, key, times](JobControl& control) {
         control.report("integrating the true system from the answer key", -1.0);
-        return make_revealed_truth(brief, key, times);
+        return make_revealed_truth(key, std::make_shared<const TruthEphemeris>(integrate_truth(brief, key)), times);
     });
     return true;
 }
@@ -191,7 +191,7 @@ bool Analysis::score_due(const ViewerModel& m, const ViewerControls& c) const {
     return !(scored_ && *scored_ == in) && !(scoring_ && *scoring_ == in);
 }
 
-void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
+void Analysis::take_finished(ViewerModel& model, ViewerControls& controls) {
     if (fit_job.running()) {
         const auto [stage, fraction] = fit_job.progress();
         (void)fraction;
@@ -220,6 +220,62 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
         if (auto v = reveal_job.take()) apply_reveal(model, std::move(*v));
         else reveal_error = "the answer key's system could not be integrated: " + why;
     }
+}
+
+void Analysis::poll_scores(ViewerModel& model, ViewerControls& controls) {
+    if (score_job.ended()) {
+        const std::string why = score_job.error();
+        if (auto v = score_job.take()) {
+            scores = std::move(*v);
+            scored_ = scoring_;
+        } else {
+            ScoreSet failed;
+            failed.trainee_error = failed.solver_error = why;
+            scores = failed;
+            scored_ = scoring_;
+        }
+        scoring_.reset();
+    }
+    if (!score_job.running() && score_due(model, controls)) {
+        const ScoreInput in = score_input(controls);
+        scoring_ = in;
+        const Brief brief = exercise_->brief;
+        std::shared_ptr<const TruthEphemeris> truth = model.revealed->truth;  // the reveal's integration, not another
+        std::shared_ptr<const Solution> s = solution;
+        std::optional<Prediction> own;
+        if (in.marker) {
+            Prediction p;
+            p.lon = wrap_two_pi(in.lon);
+            p.lat = in.lat;
+            p.epoch_year = model.year(in.epoch_days);
+            own = p;
+        }
+        score_job.start([brief, truth, s, own](JobControl& control) {
+            ScoreSet set;
+            if (own) {
+                control.report("scoring your prediction", -1.0);
+                try {
+                    set.trainee = ScoredPrediction{"your prediction", *own, score_prediction(brief, *truth, *own, luck_window_years)};
+                } catch (const std::exception& e) {
+                    set.trainee_error = e.what();
+                }
+            }
+            if (s) {
+                control.report("scoring the solver's prediction", -1.0);
+                try {
+                    set.solver = ScoredPrediction{"the solver's prediction", s->prediction,
+                                                  score_prediction(brief, *truth, s->prediction, luck_window_years)};
+                } catch (const std::exception& e) {
+                    set.solver_error = e.what();
+                }
+            }
+            return set;
+        });
+    }
+}
+
+void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
+    take_finished(model, controls);
 
     // The selected minimum's track.
     if (minimum_job.ended()) {
@@ -276,55 +332,7 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
     }
 
     // Scores, after the reveal.
-    if (score_job.ended()) {
-        const std::string why = score_job.error();
-        if (auto v = score_job.take()) {
-            scores = std::move(*v);
-            scored_ = scoring_;
-        } else {
-            ScoreSet failed;
-            failed.trainee_error = failed.solver_error = why;
-            scores = failed;
-            scored_ = scoring_;
-        }
-        scoring_.reset();
-    }
-    if (!score_job.running() && score_due(model, controls)) {
-        const ScoreInput in = score_input(controls);
-        scoring_ = in;
-        const Brief brief = exercise_->brief;
-        const AnswerKey key = *opened_key_;
-        std::shared_ptr<const Solution> s = solution;
-        std::optional<Prediction> own;
-        if (in.marker) {
-            Prediction p;
-            p.lon = wrap_two_pi(in.lon);
-            p.lat = in.lat;
-            p.epoch_year = model.year(in.epoch_days);
-            own = p;
-        }
-        score_job.start([brief, key, s, own](JobControl& control) {
-            ScoreSet set;
-            if (own) {
-                control.report("scoring your prediction", -1.0);
-                try {
-                    set.trainee = ScoredPrediction{"your prediction", *own, score_prediction(brief, key, *own, luck_window_years)};
-                } catch (const std::exception& e) {
-                    set.trainee_error = e.what();
-                }
-            }
-            if (s) {
-                control.report("scoring the solver's prediction", -1.0);
-                try {
-                    set.solver = ScoredPrediction{"the solver's prediction", s->prediction,
-                                                  score_prediction(brief, key, s->prediction, luck_window_years)};
-                } catch (const std::exception& e) {
-                    set.solver_error = e.what();
-                }
-            }
-            return set;
-        });
-    }
+    poll_scores(model, controls);
 }
 
 bool Analysis::busy(const ViewerModel& m, const ViewerControls& c) const {
@@ -341,6 +349,13 @@ bool Analysis::wait_idle(ViewerModel& m, ViewerControls& c, double timeout_secon
         if (std::chrono::steady_clock::now() > until) return false;
         std::this_thread::sleep_for(std::chrono::milliseconds(5));
     }
+}
+
+void attach_analysis(ViewerModel& m, bool start_fit) {
+    if (m.mode != ViewerMode::trainee || !m.exercise || m.analysis) return;
+    m.analysis = std::make_shared<Analysis>(m.exercise);
+    m.analysis->load_solution_file();
+    if (start_fit) m.analysis->start_fit();
 }
 
 }  // namespace wayward::viewer

@@ -142,6 +142,13 @@ private:
     bool minimum_due(const ViewerControls& c) const;
     bool score_due(const ViewerModel& m, const ViewerControls& c) const;
     void take_solution(Solution s, SolutionSource from, ViewerControls* controls);
+    // Steps of poll: take the fit, solve and reveal jobs that ended; take a finished score and start the due one.
+    void take_finished(ViewerModel& model, ViewerControls& controls);
+    void poll_scores(ViewerModel& model, ViewerControls& controls);
 };
+
+// Gives a trainee model its Analysis (the app and tests call this after load_model; author models get none):
+// reads DIR/solution.toml if it belongs to the exercise and, if `start_fit`, starts the known-bodies fit.
+void attach_analysis(ViewerModel& model, bool start_fit = true);
 
 }  // namespace wayward::viewer

@@ -110,8 +110,10 @@ public:
         mo.star_count = opt_.stars;
         mo.star_faint_mag = controls_.star_faint_mag;
         LoadOutcome loaded = load_model(opt_.input, mo);
-        if (loaded.model) model_ = std::move(loaded.model);
-        else {
+        if (loaded.model) {
+            model_ = std::move(loaded.model);
+            attach_analysis(*model_);
+        } else {
             error_ = loaded.error;
             std::cerr << "wayward-view: " << error_ << "\n";
         }

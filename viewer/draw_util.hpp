@@ -11,6 +11,7 @@
 
 #include <imgui.h>
 
+#include "sim/report/plot.hpp"
 #include "viewer/fonts.hpp"
 
 namespace wayward::viewer {
@@ -86,14 +87,8 @@ inline void draw_label(ImDrawList& list, const FontSet& fonts, float size, Label
     draw_text(list, fonts, size, placer.place(at, radius, extent), colour, text, Align::left, true);
 }
 
-// The smallest of 1, 2, 5 x 10^k not below `at_least`.
-inline double nice_step(double at_least) {
-    if (!(at_least > 0.0)) return 1.0;
-    const double p = std::pow(10.0, std::floor(std::log10(at_least)));
-    for (double m : {1.0, 2.0, 5.0, 10.0})
-        if (m * p >= at_least * (1.0 - 1e-9)) return m * p;
-    return 10.0 * p;
-}
+// The smallest of 1, 2, 5 x 10^k not below `at_least` (sim's Heckbert nice number, rounded up).
+inline double nice_step(double at_least) { return at_least > 0.0 ? plot::nice_number(at_least, false) : 1.0; }
 
 // A legend row: a swatch (disc or bar) and a label. Returns the y of the next row.
 inline float legend_row(ImDrawList& list, const FontSet& fonts, float size, ImVec2 pos, sf::Color colour,

@@ -10,7 +10,6 @@
 #include "sim/physics/elements.hpp"
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
-#include "viewer/analysis.hpp"
 
 namespace wayward::viewer {
 
@@ -33,19 +32,19 @@ double ViewerModel::search_epoch_year() const {
 
 Vec3 ViewerModel::position(std::size_t body, double t) const {
     const BodyView& b = bodies[body];
-    return b.from_key ? revealed->run.ephemeris.position(b.source, t) : run.ephemeris.position(b.source, t);
+    return b.from_key ? revealed->truth->run.ephemeris.position(b.source, t) : run.ephemeris.position(b.source, t);
 }
 
 SkyPosition ViewerModel::sky(std::size_t body, double t) const {
     const BodyView& b = bodies[body];
     // The revealed body is seen from the true observer in the true observer's frame, as sim's scoring sees it.
-    if (b.from_key) return apparent(revealed->run.ephemeris, revealed->frame, revealed->observer, b.source, t).sky;
+    if (b.from_key) return apparent(revealed->truth->run.ephemeris, revealed->truth->frame, revealed->truth->observer, b.source, t).sky;
     return apparent(run.ephemeris, frame, bodies[observer].source, b.source, t).sky;
 }
 
 double ViewerModel::elongation(std::size_t body, double t) const {
     const BodyView& b = bodies[body];
-    if (b.from_key) return wayward::elongation(revealed->run.ephemeris, revealed->observer, b.source, t);
+    if (b.from_key) return wayward::elongation(revealed->truth->run.ephemeris, revealed->truth->observer, b.source, t);
     return wayward::elongation(run.ephemeris, bodies[observer].source, b.source, t);
 }
 
@@ -66,25 +65,34 @@ void regenerate_stars(ViewerModel& model, long count, double faint_mag) {
 
 namespace {
 
+// A system body as the panels see it; mass, a, e and the two-body period from the elements it was given with.
+BodyView body_view(const System& s, std::size_t i) {
+    BodyView b;
+    b.name = s.bodies[i].name;
+    b.role = s.bodies[i].role;
+    b.observer = s.bodies[i].observer;
+    b.index = i;
+    b.source = i;
+    return b;
+}
+
+void set_orbit(BodyView& b, double mass, const Elements& el, double star_mass) {
+    b.mass = mass;
+    b.a_au = el.semi_major_axis;
+    b.e = el.eccentricity;
+    if (b.e < 1.0) b.period_days = orbital_period(b.a_au, gm_from_mass(star_mass + mass));
+}
+
+// Author mode: the drawn system's bodies, with their drawn elements.
 void fill_bodies(ViewerModel& m) {
     const System& s = m.truth.system;
     m.bodies.clear();
     for (std::size_t i = 0; i < s.size(); ++i) {
-        BodyView b;
-        b.name = s.bodies[i].name;
-        b.role = s.bodies[i].role;
-        b.observer = s.bodies[i].observer;
-        b.index = i;
-        b.source = i;
-        if (i == 0) {
-            b.mass = m.truth.star_mass;
-        } else {
+        BodyView b = body_view(s, i);
+        if (i == 0) b.mass = m.truth.star_mass;
+        else {
             const DrawnBody& d = m.truth.bodies[i - 1];  // truth.bodies lists the planets in system order
-            b.mass = d.mass;
-            b.a_au = d.elements.semi_major_axis;
-            b.e = d.elements.eccentricity;
-            if (d.elements.eccentricity < 1.0)
-                b.period_days = orbital_period(d.elements.semi_major_axis, gm_from_mass(m.truth.star_mass + d.mass));
+            set_orbit(b, d.mass, d.elements, m.truth.star_mass);
         }
         m.bodies.push_back(b);
     }
@@ -95,20 +103,11 @@ void fill_bodies_from_brief(ViewerModel& m, const System& s) {
     const Brief& brief = m.exercise->brief;
     m.bodies.clear();
     for (std::size_t i = 0; i < s.size(); ++i) {
-        BodyView b;
-        b.name = s.bodies[i].name;
-        b.role = s.bodies[i].role;
-        b.observer = s.bodies[i].observer;
-        b.index = i;
-        b.source = i;
-        if (i == 0) {
-            b.mass = brief.star_mass;
-        } else {
+        BodyView b = body_view(s, i);
+        if (i == 0) b.mass = brief.star_mass;
+        else {
             const BriefPlanet& p = brief.planets[i - 1];  // known_model_system keeps the brief's order
-            b.mass = p.mass;
-            b.a_au = p.elements.semi_major_axis;
-            b.e = p.elements.eccentricity;
-            if (b.e < 1.0) b.period_days = orbital_period(b.a_au, gm_from_mass(brief.star_mass + p.mass));
+            set_orbit(b, p.mass, p.elements, brief.star_mass);
         }
         m.bodies.push_back(b);
     }
@@ -156,7 +155,7 @@ void load_author(ViewerModel& m, const std::string& path, const LoadOptions& opt
     fill_bodies(m);
 }
 
-void load_trainee(ViewerModel& m, const std::string& dir, const LoadOptions& options) {
+void load_trainee(ViewerModel& m, const std::string& dir) {
     m.mode = ViewerMode::trainee;
     // Brief, observations and the observer's track only: the answer key stays sealed.
     m.exercise = std::make_shared<const Exercise>(load_exercise(dir));
@@ -175,9 +174,6 @@ void load_trainee(ViewerModel& m, const std::string& dir, const LoadOptions& opt
     m.observer = known.observer_index();
     m.frame = observer_frame(known, m.observer);
     fill_bodies_from_brief(m, known);
-    m.analysis = std::make_shared<Analysis>(m.exercise);
-    m.analysis->load_solution_file();
-    if (options.start_work) m.analysis->start_fit();
 }
 
 }  // namespace
@@ -198,7 +194,7 @@ LoadOutcome load_model(const std::string& path, const LoadOptions& options) {
         ViewerModel m;
         m.source = path;
         m.seed = options.seed;
-        if (std::filesystem::is_directory(path, ec)) load_trainee(m, path, options);
+        if (std::filesystem::is_directory(path, ec)) load_trainee(m, path);
         else load_author(m, path, options);
         fill_samples(m, options.sample_step_days);
         m.star_spec.seed = m.seed;
@@ -213,27 +209,20 @@ LoadOutcome load_model(const std::string& path, const LoadOptions& options) {
     return out;
 }
 
-RevealedTruth make_revealed_truth(const Brief& brief, const AnswerKey& key, const std::vector<double>& times) {
+RevealedTruth make_revealed_truth(const AnswerKey& key, std::shared_ptr<const TruthEphemeris> truth, const std::vector<double>& times) {
     RevealedTruth r;
     r.key = key;
-    const System sys = key.system();
-    const auto hidden = key.hidden_index();
-    if (!hidden) throw InputError(key.file, 0, "body", "the answer key has no hidden body");
-    r.hidden = *hidden;
-    r.observer = sys.observer_index();
-    r.frame = observer_frame(sys, r.observer);
-    r.run = integrate(sys, 0.0, brief.span_years * julian_year_days);
-    if (r.run.outcome != IntegrationOutcome::ok)
-        throw std::runtime_error("the answer key's system could not be integrated: " + to_string(r.run.outcome));
-    const Ephemeris& eph = r.run.ephemeris;
+    r.truth = std::move(truth);
+    const TruthEphemeris& tr = *r.truth;
+    const Ephemeris& eph = tr.run.ephemeris;
     r.xyz.assign(times.size() * 3, std::numeric_limits<float>::quiet_NaN());
     r.lon.assign(times.size(), std::numeric_limits<float>::quiet_NaN());
     r.lat = r.lon;
     for (std::size_t k = 0; k < times.size(); ++k) {
         const double t = std::clamp(times[k], eph.t_begin(), eph.t_end());
-        const Vec3 p = eph.position(r.hidden, t);
+        const Vec3 p = eph.position(tr.hidden, t);
         for (int c = 0; c < 3; ++c) r.xyz[k * 3 + static_cast<std::size_t>(c)] = static_cast<float>(p[c]);
-        const SkyPosition s = apparent(eph, r.frame, r.observer, r.hidden, t).sky;
+        const SkyPosition s = apparent(eph, tr.frame, tr.observer, tr.hidden, t).sky;
         r.lon[k] = static_cast<float>(s.lon);
         r.lat[k] = static_cast<float>(s.lat);
     }
@@ -256,7 +245,7 @@ void apply_reveal(ViewerModel& m, RevealedTruth truth) {
     b.role = Role::hidden;
     b.index = n;
     b.from_key = true;
-    b.source = truth.hidden;
+    b.source = truth.truth->hidden;
     b.mass = truth.mass;
     b.a_au = truth.a_au;
     b.e = truth.e;

@@ -18,11 +18,12 @@
 #include "sim/truth/generate.hpp"
 #include "sim/physics/geometry.hpp"
 #include "sim/scenario/scenario.hpp"
+#include "sim/score/truth_ephemeris.hpp"
 #include "sim/search/starfield.hpp"
 
 namespace wayward::viewer {
 
-class Analysis;  // viewer/analysis.hpp: the trainee's fit, solve and score work
+class Analysis;  // viewer/analysis.hpp: the trainee's fit, solve and score work (attach_analysis gives it)
 
 // Author mode shows everything of a scenario, the hidden body included. Trainee mode, for exercise folders,
 // keeps the hidden body out of view until a confirmed reveal.
@@ -38,13 +39,11 @@ struct PlanFacts {
     std::vector<double> search_epochs_year;
 };
 
-// The answer key once revealed: the true system integrated by sim (as sim's true_track integrates it).
+// The answer key once revealed: the true system as sim's integrate_truth integrates it, the same integration
+// the scores are computed from.
 struct RevealedTruth {
     AnswerKey key;
-    IntegrationResult run;
-    ObserverFrame frame;             // the true observer's frame
-    std::size_t observer = 0;        // in the key's system
-    std::size_t hidden = 0;          // in the key's system
+    std::shared_ptr<const TruthEphemeris> truth;
     // The hidden body at the model's sample times (same layout as one body's samples in ViewerModel).
     std::vector<float> xyz, lon, lat;
     double mass = 0.0, a_au = 0.0, e = 0.0, period_days = 0.0;
@@ -112,7 +111,6 @@ struct LoadOptions {
     double sample_step_days = 2.0;
     long star_count = -1;         // < 0: the count law's expected count down to star_faint_mag
     double star_faint_mag = 7.0;
-    bool start_work = true;       // trainee mode: start the known-bodies fit at once
 };
 
 struct LoadOutcome {
@@ -120,14 +118,15 @@ struct LoadOutcome {
     std::string error;            // set when model is empty: what went wrong, for the window and stderr
 };
 
-// Opens a scenario file (author mode) or an exercise folder (trainee mode; starts the known-bodies fit in a
-// worker thread unless `start_work` is false). Never throws: problems come back as a message.
+// Opens a scenario file (author mode) or an exercise folder (trainee mode; the trainee's work comes with
+// attach_analysis in viewer/analysis.hpp). Never throws: problems come back as a message.
 LoadOutcome load_model(const std::string& path, const LoadOptions& options);
 
 // Adds the revealed hidden body to a trainee model (its samples were computed with make_revealed_truth).
 void apply_reveal(ViewerModel& model, RevealedTruth truth);
-// Integrates the key's true system and samples its hidden body at the model's sample times. Throws on failure.
-RevealedTruth make_revealed_truth(const Brief& brief, const AnswerKey& key, const std::vector<double>& sample_times);
+// Samples the hidden body of the key's integrated system (sim's integrate_truth) at the model's sample times.
+RevealedTruth make_revealed_truth(const AnswerKey& key, std::shared_ptr<const TruthEphemeris> truth,
+                                  const std::vector<double>& sample_times);
 
 // Regenerates the star field with a new count or faint limit.
 void regenerate_stars(ViewerModel& model, long count, double faint_mag);

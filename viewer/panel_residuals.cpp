@@ -123,37 +123,6 @@ std::vector<std::string> describe_observation(const KnownFit& fit, std::size_t k
     return lines;
 }
 
-std::vector<ResidualSummaryRow> residual_summary(const KnownFit& fit) {
-    const ModelSetup& s = fit.setup;
-    std::vector<ResidualSummaryRow> rows;
-    for (std::size_t p = 0; p < s.planets.size(); ++p)
-        for (std::size_t e = 0; e < s.eras.size(); ++e) {
-            ResidualSummaryRow r;
-            r.planet = s.known.bodies[s.planets[p]].name;
-            r.era = s.eras[e];
-            r.sigma_estimated = !s.era_records_sigma[e];
-            double sl = 0, sb = 0;
-            for (std::size_t k = 0; k < s.obs.size(); ++k) {
-                const FitObservation& f = s.obs[k];
-                if (f.planet != p || f.era != e) continue;
-                if (f.rejected) {
-                    ++r.set_aside;
-                    continue;
-                }
-                sl += fit.residuals[k][0] * fit.residuals[k][0];
-                sb += fit.residuals[k][1] * fit.residuals[k][1];
-                r.sigma = f.sigma_lon_arcsec;
-                ++r.kept;
-            }
-            if (r.kept == 0 && r.set_aside == 0) continue;
-            const double n = static_cast<double>(std::max<std::size_t>(r.kept, 1));
-            r.rms_lon = std::sqrt(sl / n);
-            r.rms_lat = std::sqrt(sb / n);
-            rows.push_back(r);
-        }
-    return rows;
-}
-
 namespace {
 
 bool author_note(const ViewerModel& m) {
@@ -201,15 +170,15 @@ public:
             ImGui::TableHeadersRow();
             std::string planet;
             for (const ResidualSummaryRow& r : residual_summary(f)) {
-                if (r.planet != planet) {
-                    planet = r.planet;
+                if (r.planet_name != planet) {
+                    planet = r.planet_name;
                     ImGui::TableNextRow();
                     ImGui::TableNextColumn();
-                    ImGui::TextColored(palette::to_imgui(palette::known), "%s", r.planet.c_str());
+                    ImGui::TextColored(palette::to_imgui(palette::known), "%s", r.planet_name.c_str());
                 }
                 ImGui::TableNextRow();
                 ImGui::TableNextColumn();
-                ImGui::TextDisabled("  %s", r.era.c_str());
+                ImGui::TextDisabled("  %s", r.era_name.c_str());
                 if (r.set_aside && ImGui::IsItemHovered()) ImGui::SetTooltip("%zu set aside", r.set_aside);
                 ImGui::TableNextColumn();
                 ImGui::Text("%zu", r.kept);

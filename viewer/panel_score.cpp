@@ -10,6 +10,7 @@
 #include <cstdio>
 
 #include "sim/physics/geometry.hpp"
+#include "sim/score/luck_intervals.hpp"
 #include "sim/base/units.hpp"
 #include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
@@ -110,12 +111,9 @@ public:
         const ImVec2 lo(canvas.left, canvas.top), hi(canvas.left + canvas.width, canvas.top + canvas.height);
         const float ts = ctx.text_size, header = 64.0f;
         if (m.mode != ViewerMode::trainee) {
-            list.PushClipRect(lo, hi, true);
-            title_block(list, canvas, ctx, "");
-            draw_card(list, ctx.fonts, ts, canvas, palette::text_dim, "An exercise folder is needed",
-                      "Author mode already shows the hidden body. To rehearse a prediction and score it, make an exercise with "
-                      "`wayward new scenarios/default.toml --out DIR` and open DIR in the viewer.");
-            list.PopClipRect();
+            draw_exercise_needed(list, ctx.fonts, ts, canvas, "Reveal and score",
+                                 "Author mode already shows the hidden body. To rehearse a prediction and score it, make an exercise with "
+                                 "`wayward new scenarios/default.toml --out DIR` and open DIR in the viewer.");
             return;
         }
         const Analysis& a = *m.analysis;
@@ -241,12 +239,7 @@ private:
     }
 
     void title_block(ImDrawList& list, const sf::FloatRect& canvas, const DrawContext& ctx, const std::string& sub) {
-        const float pad = 16.0f, ts = ctx.text_size;
-        draw_text(list, ctx.fonts, ts * 1.35f, ImVec2(canvas.left + pad, canvas.top + pad - 4.0f), im_color(palette::text), "Reveal and score",
-                  Align::left, true);
-        if (!sub.empty())
-            draw_text(list, ctx.fonts, ts * 0.85f, ImVec2(canvas.left + pad, canvas.top + pad + ts * 1.45f), im_color(palette::text_dim), sub,
-                      Align::left, true);
+        draw_panel_title(list, ctx.fonts, ctx.text_size, canvas, "Reveal and score", sub);
     }
 
     // The predictions, their search fields and separations over the chart; the true track around the epoch.
@@ -361,17 +354,11 @@ private:
             const bool solver = sp == (s.solver ? &*s.solver : nullptr);
             const sf::Color col = solver ? palette::solution : palette::prediction;
             std::vector<double> xs, ys;
-            bool inside = false;
-            double from = 0;
             for (const LuckPoint& l : sp->score.luck) {
                 xs.push_back(l.year);
                 ys.push_back(std::max(l.separation_arcmin, 1e-3));
-                const bool in = l.separation_arcmin <= field;
-                if (in && !inside) from = l.year;
-                if (!in && inside) plot.x_band(from, l.year, im_color(col, 40));
-                inside = in;
             }
-            if (inside) plot.x_band(from, xs.back(), im_color(col, 40));
+            for (const Interval& in : inside_field_intervals(sp->score)) plot.x_band(in.from, in.to, im_color(col, 40));
             plot.line(xs, ys, im_color(col), 2.0f);
             legend.push_back({std::string(solver ? "solver" : "you") + (sp->score.luck_from_track ? " (its predicted track)" : " (fixed point)"),
                               im_color(col), Marker::circle, true, true});

@@ -54,8 +54,15 @@ public:
             return;
         }
         Analysis& a = *m.analysis;
-        SolveForm& f = a.form;
         const bool running = a.solve_job.running();
+        priors_form(a, m, running);
+        run_controls(a, running);
+        solution_section(c, m, a);
+    }
+
+    // The solver's priors (disabled while it runs) and the `wayward solve` command they amount to.
+    void priors_form(Analysis& a, const ViewerModel& m, bool running) {
+        SolveForm& f = a.form;
         ImGui::BeginDisabled(running);
         ImGui::SetNextItemWidth(-110.0f);
         ImGui::Combo("distance", &f.distance, distance_names, 4);
@@ -96,7 +103,10 @@ public:
         ImGui::PushTextWrapPos(0.0f);
         ImGui::TextDisabled("= %s", solve_command(f, "DIR", m.search_epoch_year()).c_str());
         ImGui::PopTextWrapPos();
+    }
 
+    // Run or cancel, the run's progress, and why a run or solution.toml was refused.
+    void run_controls(Analysis& a, bool running) {
         if (!running) {
             ImGui::BeginDisabled(a.fit_job.running());
             if (ImGui::Button("Run the solver", ImVec2(140, 0))) a.start_solve();
@@ -114,7 +124,10 @@ public:
         if (!a.solution_file_problem.empty())
             ImGui::TextColored(palette::to_imgui(palette::unobservable), "solution.toml not used: %s", a.solution_file_problem.c_str());
         ImGui::PopTextWrapPos();
+    }
 
+    // The solution: where it came from, saving it, the local minima and the selected one's details.
+    void solution_section(ViewerControls& c, const ViewerModel& m, Analysis& a) {
         if (!a.solution) return;
         const Solution& s = *a.solution;
         ImGui::Separator();
@@ -185,12 +198,9 @@ public:
         const ImVec2 lo(canvas.left, canvas.top), hi(canvas.left + canvas.width, canvas.top + canvas.height);
         const float ts = ctx.text_size, header = 64.0f;
         if (m.mode != ViewerMode::trainee) {
-            list.PushClipRect(lo, hi, true);
-            title_block(list, canvas, ctx, "");
-            draw_card(list, ctx.fonts, ts, canvas, palette::text_dim, "An exercise folder is needed",
-                      "The solver works on an exercise's observations. Make one with `wayward new scenarios/default.toml --out DIR` "
-                      "and open DIR in the viewer.");
-            list.PopClipRect();
+            draw_exercise_needed(list, ctx.fonts, ts, canvas, "Solve: the hidden body from the observations",
+                                 "The solver works on an exercise's observations. Make one with `wayward new scenarios/default.toml --out DIR` "
+                                 "and open DIR in the viewer.");
             return;
         }
         const Analysis& a = *m.analysis;
@@ -245,12 +255,7 @@ private:
     std::string save_error_;
 
     void title_block(ImDrawList& list, const sf::FloatRect& canvas, const DrawContext& ctx, const std::string& sub) {
-        const float pad = 16.0f, ts = ctx.text_size;
-        draw_text(list, ctx.fonts, ts * 1.35f, ImVec2(canvas.left + pad, canvas.top + pad - 4.0f), im_color(palette::text),
-                  "Solve: the hidden body from the observations", Align::left, true);
-        if (!sub.empty())
-            draw_text(list, ctx.fonts, ts * 0.85f, ImVec2(canvas.left + pad, canvas.top + pad + ts * 1.45f), im_color(palette::text_dim), sub,
-                      Align::left, true);
+        draw_panel_title(list, ctx.fonts, ctx.text_size, canvas, "Solve: the hidden body from the observations", sub);
     }
 
     void sky_legend(ImDrawList& list, const sf::FloatRect& sky, const ViewerControls& c, const DrawContext& ctx, const Prediction& p,

@@ -5,6 +5,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "sim/report/ticks.hpp"
 #include "viewer/draw_util.hpp"
 #include "viewer/imgui_sfml_bridge.hpp"
 #include "viewer/palette.hpp"
@@ -45,35 +46,6 @@ void draw_marker(ImDrawList& list, ImVec2 c, Marker m, float r, ImU32 col, bool 
             break;
         }
     }
-}
-
-std::vector<double> plot_ticks(double lo, double hi, int target, bool log) {
-    std::vector<double> ticks;
-    if (!(hi > lo)) return ticks;
-    if (log) {
-        if (!(lo > 0)) return ticks;
-        const int d0 = static_cast<int>(std::floor(std::log10(lo))), d1 = static_cast<int>(std::ceil(std::log10(hi)));
-        const bool fine = d1 - d0 <= 3;
-        for (int d = d0; d <= d1; ++d)
-            for (double m : fine ? std::vector<double>{1, 2, 5} : std::vector<double>{1}) {
-                const double v = m * std::pow(10.0, d);
-                if (v >= lo * (1 - 1e-9) && v <= hi * (1 + 1e-9)) ticks.push_back(v);
-            }
-        return ticks;
-    }
-    const double step = nice_step((hi - lo) / std::max(1, target));
-    for (double v = std::ceil(lo / step - 1e-9) * step; v <= hi + step * 1e-9; v += step)
-        ticks.push_back(std::abs(v) < step * 1e-9 ? 0.0 : v);
-    return ticks;
-}
-
-std::string plot_tick_label(double v, double spacing, bool log) {
-    char buf[48];
-    int decimals = 0;
-    if (log) decimals = v < 1.0 ? static_cast<int>(std::ceil(-std::log10(v) - 1e-9)) : 0;
-    else if (spacing > 0 && spacing < 1.0) decimals = static_cast<int>(std::ceil(-std::log10(spacing) - 1e-9));
-    std::snprintf(buf, sizeof buf, "%s%.*f", v < 0 ? "\u2212" : "", std::clamp(decimals, 0, 6), std::abs(v));
-    return buf;
 }
 
 PlotAxis padded_axis(double lo, double hi, double margin, bool symmetric, const std::string& label) {
@@ -147,19 +119,20 @@ void Plot::draw_frame() {
     const float small = ts_ * 0.8f;
     list_.AddRectFilled(g_.lo, g_.hi, IM_COL32(14, 18, 30, 255), 3.0f);
     const ImU32 grid = im_color(palette::grid, 120), label = im_color(palette::text_dim);
-    const std::vector<double> xt = plot_ticks(g_.x.lo, g_.x.hi, std::max(2, static_cast<int>((g_.hi.x - g_.lo.x) / 75.0f)), g_.x.log);
-    const std::vector<double> yt = plot_ticks(g_.y.lo, g_.y.hi, std::max(2, static_cast<int>((g_.hi.y - g_.lo.y) / 32.0f)), g_.y.log);
+    // About one tick per 75 px across and per 32 px up.
+    const std::vector<double> xt = axis_ticks(g_.x.lo, g_.x.hi, std::max(2, static_cast<int>((g_.hi.x - g_.lo.x) / 75.0f)) + 1, g_.x.log);
+    const std::vector<double> yt = axis_ticks(g_.y.lo, g_.y.hi, std::max(2, static_cast<int>((g_.hi.y - g_.lo.y) / 32.0f)) + 1, g_.y.log);
     const double xs = xt.size() >= 2 ? xt[1] - xt[0] : 1.0, ys = yt.size() >= 2 ? yt[1] - yt[0] : 1.0;
     for (double v : xt) {
         const float sx = std::round(to_screen(v, g_.y.log ? g_.y.lo : 0.0).x) + 0.5f;
         list_.AddLine(ImVec2(sx, g_.lo.y), ImVec2(sx, g_.hi.y), grid);
-        draw_text(list_, fonts_, small, ImVec2(sx, g_.hi.y + 3.0f), label, plot_tick_label(v, xs, g_.x.log), Align::centre);
+        draw_text(list_, fonts_, small, ImVec2(sx, g_.hi.y + 3.0f), label, axis_tick_label(v, xs, g_.x.log), Align::centre);
     }
     for (double v : yt) {
         const float sy = std::round(to_screen(g_.x.log ? g_.x.lo : 0.0, v).y) + 0.5f;
         const bool zero = !g_.y.log && v == 0.0;
         list_.AddLine(ImVec2(g_.lo.x, sy), ImVec2(g_.hi.x, sy), zero ? im_color(palette::grid_strong, 220) : grid, zero ? 1.3f : 1.0f);
-        draw_text(list_, fonts_, small, ImVec2(g_.lo.x - 5.0f, sy - small * 0.6f), label, plot_tick_label(v, ys, g_.y.log), Align::right);
+        draw_text(list_, fonts_, small, ImVec2(g_.lo.x - 5.0f, sy - small * 0.6f), label, axis_tick_label(v, ys, g_.y.log), Align::right);
     }
     list_.AddRect(g_.lo, g_.hi, im_color(palette::grid_strong, 200), 3.0f);
     if (!title_.empty()) draw_text(list_, fonts_, ts_ * 0.95f, ImVec2(g_.lo.x, g_.outer_lo.y + 1.0f), im_color(palette::text), title_);

@@ -32,11 +32,7 @@ struct PlotAxis {
     std::string label;
 };
 
-// Tick positions inside [lo, hi]: 1, 2, 5 x 10^k steps about `target` of them (linear), or decades (log;
-// with 2 and 5 between when the range spans fewer than three decades).
-std::vector<double> plot_ticks(double lo, double hi, int target, bool log);
-// A tick label with no more decimals than the tick spacing needs (U+2212 for negatives).
-std::string plot_tick_label(double value, double spacing, bool log);
+// Tick positions and labels come from sim (axis_ticks, axis_tick_label in sim/report/ticks.hpp).
 // The range with a margin, symmetric about zero when `symmetric` (for residuals).
 PlotAxis padded_axis(double lo, double hi, double margin_fraction, bool symmetric, const std::string& label);
 

@@ -65,4 +65,23 @@ inline void draw_card(ImDrawList& list, const FontSet& fonts, float text_size, c
     }
 }
 
+// A panel's title at the top left of its canvas and, if given, a dimmer line under it.
+inline void draw_panel_title(ImDrawList& list, const FontSet& fonts, float text_size, const sf::FloatRect& canvas, const std::string& title,
+                             const std::string& sub) {
+    const float pad = 16.0f;
+    draw_text(list, fonts, text_size * 1.35f, ImVec2(canvas.left + pad, canvas.top + pad - 4.0f), im_color(palette::text), title, Align::left, true);
+    if (!sub.empty())
+        draw_text(list, fonts, text_size * 0.85f, ImVec2(canvas.left + pad, canvas.top + pad + text_size * 1.45f), im_color(palette::text_dim), sub,
+                  Align::left, true);
+}
+
+// What a trainee-only panel shows in author mode: its title and a card saying an exercise folder is needed.
+inline void draw_exercise_needed(ImDrawList& list, const FontSet& fonts, float text_size, const sf::FloatRect& canvas, const std::string& title,
+                                 const std::string& why) {
+    list.PushClipRect(ImVec2(canvas.left, canvas.top), ImVec2(canvas.left + canvas.width, canvas.top + canvas.height), true);
+    draw_panel_title(list, fonts, text_size, canvas, title, "");
+    draw_card(list, fonts, text_size, canvas, palette::text_dim, "An exercise folder is needed", why);
+    list.PopClipRect();
+}
+
 }  // namespace wayward::viewer

@@ -1,6 +1,6 @@
 // The Residuals panel's pieces that tests use without a window: the layout of its plots (one row per observed
 // planet, O−C in λ·cos β and in β against year), where each observation is drawn, which one is under the
-// mouse, the hover text, and the RMS table of the sidebar. The residuals themselves are sim's (fit_known).
+// mouse, the hover text. The residuals and their RMS table are sim's (fit_known, residual_summary).
 #pragma once
 
 #include <cstddef>
@@ -13,6 +13,7 @@
 #include <imgui.h>
 
 #include "sim/fit/known_fit.hpp"
+#include "sim/fit/residual_summary.hpp"
 #include "viewer/plot_widgets.hpp"
 
 namespace wayward::viewer {
@@ -40,14 +41,6 @@ std::optional<std::size_t> residual_under(const KnownFit& fit, const ResidualLay
 // The hover text: year and date, target, era, O−C in both coordinates, σ in use, and whether it was set aside.
 std::vector<std::string> describe_observation(const KnownFit& fit, std::size_t k);
 
-// One row of the sidebar's table: RMS of the kept O−C by planet and era (as `wayward residuals` prints it).
-struct ResidualSummaryRow {
-    std::string planet, era;
-    std::size_t kept = 0, set_aside = 0;
-    double rms_lon = 0.0, rms_lat = 0.0;   // arcsec, over the kept observations
-    double sigma = 0.0;                    // the era's σ in λ·cos β in use (last kept observation's)
-    bool sigma_estimated = false;
-};
-std::vector<ResidualSummaryRow> residual_summary(const KnownFit& fit);
+// The sidebar's RMS table by planet and era is sim's residual_summary (sim/fit/residual_summary.hpp).
 
 }  // namespace wayward::viewer

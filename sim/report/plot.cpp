@@ -16,6 +16,7 @@
 #include <cairo.h>
 
 #include "sim/io/fileio.hpp"
+#include "sim/score/field_intervals.hpp"
 
 namespace wayward::plot {
 
@@ -1532,34 +1533,7 @@ Panel histogram(const std::vector<double>& samples, int bins, std::string label,
 std::vector<Span> spans_where_below(const std::vector<double>& x, const std::vector<double>& y, double limit,
                                     std::optional<Color> color, const std::string& label) {
     std::vector<Span> out;
-    if (!finite(limit)) return out;
-    const std::size_t n = std::min(x.size(), y.size());
-    std::optional<double> start;  // x where the current inside run began
-    double last_x = nan;          // the last finite point of the run
-    auto close = [&](double end) {
-        if (start) out.push_back(Span{*start, end, true, color, label});
-        start.reset();
-    };
-    for (std::size_t i = 0; i < n; ++i) {
-        if (!finite(x[i]) || !finite(y[i])) {
-            if (start) close(last_x);
-            continue;
-        }
-        const bool in = y[i] <= limit;
-        const bool prev_ok = i > 0 && finite(x[i - 1]) && finite(y[i - 1]);
-        if (prev_ok) {
-            const bool prev_in = y[i - 1] <= limit;
-            // Interpolated crossing between the two samples.
-            const double t = (limit - y[i - 1]) / (y[i] - y[i - 1]);
-            const double xc = x[i - 1] + (finite(t) ? std::clamp(t, 0.0, 1.0) : 0.0) * (x[i] - x[i - 1]);
-            if (in && !prev_in) start = xc;
-            if (!in && prev_in) close(xc);
-        } else if (in) {
-            start = x[i];
-        }
-        last_x = x[i];
-    }
-    if (start) close(last_x);
+    for (const Interval& i : intervals_at_or_below(x, y, limit)) out.push_back(Span{i.from, i.to, true, color, label});
     return out;
 }
 

@@ -5,6 +5,7 @@
 #include <cstdio>
 #include <iomanip>
 
+#include "sim/fit/residual_summary.hpp"
 #include "sim/report/plot.hpp"
 #include "sim/base/units.hpp"
 
@@ -68,31 +69,14 @@ void residuals_plot(const ModelSetup& setup, const std::vector<std::array<double
 }
 
 void print_residual_summary(const KnownFit& fit, std::ostream& out) {
-    const ModelSetup& s = fit.setup;
     out << std::fixed;
     out << "RMS of O−C (arcsec) by planet and era, observations set aside beyond 4 sigma:\n";
     out << "  " << std::left << std::setw(12) << "planet" << std::setw(18) << "era" << std::right << std::setw(6) << "n"
         << std::setw(10) << "λ·cos β" << std::setw(10) << "β" << std::setw(10) << "sigma" << std::setw(6) << "out" << "\n";
-    for (std::size_t p = 0; p < s.planets.size(); ++p)
-        for (std::size_t e = 0; e < s.eras.size(); ++e) {
-            double sl = 0, sb = 0, sig = 0;
-            std::size_t n = 0, out_n = 0;
-            for (std::size_t k = 0; k < s.obs.size(); ++k) {
-                const FitObservation& f = s.obs[k];
-                if (f.planet != p || f.era != e) continue;
-                if (f.rejected) { ++out_n; continue; }
-                sl += fit.residuals[k][0] * fit.residuals[k][0];
-                sb += fit.residuals[k][1] * fit.residuals[k][1];
-                sig = f.sigma_lon_arcsec;
-                ++n;
-            }
-            if (n == 0 && out_n == 0) continue;
-            const double dn = static_cast<double>(std::max<std::size_t>(n, 1));
-            out << "  " << std::left << std::setw(12) << s.known.bodies[s.planets[p]].name << std::setw(18) << s.eras[e]
-                << std::right << std::setw(6) << n << std::setprecision(3) << std::setw(10) << std::sqrt(sl / dn)
-                << std::setw(10) << std::sqrt(sb / dn) << std::setw(9) << sig << (s.era_records_sigma[e] ? " " : "*")
-                << std::setw(6) << out_n << "\n";
-        }
+    for (const ResidualSummaryRow& r : residual_summary(fit))
+        out << "  " << std::left << std::setw(12) << r.planet_name << std::setw(18) << r.era_name << std::right << std::setw(6)
+            << r.kept << std::setprecision(3) << std::setw(10) << r.rms_lon << std::setw(10) << r.rms_lat << std::setw(9)
+            << r.sigma << (r.sigma_estimated ? "*" : " ") << std::setw(6) << r.set_aside << "\n";
     out << "  (* sigma estimated from the era's own residuals: the era did not record it)\n";
     out << std::setprecision(3) << "chi2 = " << fit.chi2 << " for " << fit.dof << " degrees of freedom; chi2/dof = "
         << fit.chi2 / static_cast<double>(fit.dof) << "\n";

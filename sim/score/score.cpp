@@ -12,37 +12,23 @@
 
 namespace wayward {
 
-TruthTrack true_track(const Brief& brief, const AnswerKey& key, double year_from, double year_to, double step_years) {
-    const System sys = key.system();
-    const auto hidden = key.hidden_index();
-    if (!hidden) throw InputError(key.file, 0, "body", "the answer key has no hidden body");
-    const double span_end = brief.span_years * julian_year_days;
-    const IntegrationResult run = integrate(sys, -2.0, span_end);
-    if (run.outcome != IntegrationOutcome::ok) throw std::runtime_error("the truth could not be integrated: " + to_string(run.outcome));
-    const std::size_t obs = sys.observer_index();
-    const ObserverFrame frame = observer_frame(sys, obs);
-    TruthTrack t;
-    for (double y = year_from; y <= year_to + 1e-9; y += step_years) {
-        const double d = std::clamp(days_from_year(brief.epoch0_year, y), 0.0, span_end);
-        const Apparent a = apparent(run.ephemeris, frame, obs, *hidden, d);
-        t.points.push_back({y, a.sky.lon, a.sky.lat});
-    }
-    return t;
+Score score_prediction(const Brief& brief, const AnswerKey& key, const Prediction& p, double window_years) {
+    return score_prediction(brief, integrate_truth(brief, key), p, window_years);
 }
 
-Score score_prediction(const Brief& brief, const AnswerKey& key, const Prediction& p, double window_years) {
+Score score_prediction(const Brief& brief, const TruthEphemeris& truth_eph, const Prediction& p, double window_years) {
     const double lo_year = brief.epoch0_year, hi_year = brief.epoch0_year + brief.span_years;
     if (!(p.epoch_year >= lo_year && p.epoch_year <= hi_year))
         throw InputError("", 0, "epoch", "the prediction's epoch " + std::to_string(p.epoch_year) +
                                              " lies outside the exercise's span (" + std::to_string(lo_year) + " to " +
                                              std::to_string(hi_year) + ")");
     Score s;
-    s.hidden_name = key.hidden_name;
+    s.hidden_name = truth_eph.hidden_name;
     s.epoch_year = p.epoch_year;
     s.field_radius_deg = brief.field_radius_deg;
     s.predicted_lon = p.lon;
     s.predicted_lat = p.lat;
-    const TruthTrack at = true_track(brief, key, p.epoch_year, p.epoch_year, 1.0);
+    const TruthTrack at = true_track(truth_eph, p.epoch_year, p.epoch_year, 1.0);
     s.true_lon = at.points.front().lon;
     s.true_lat = at.points.front().lat;
     s.separation_arcmin = separation(p.lon, p.lat, s.true_lon, s.true_lat) / arcmin;
@@ -65,7 +51,7 @@ Score score_prediction(const Brief& brief, const AnswerKey& key, const Predictio
         for (double y = from; y <= to + 1e-9; y += step) years.push_back(y);
     }
     if (years.empty()) years.push_back(p.epoch_year);
-    const TruthTrack truth = true_track(brief, key, years.front(), years.back(), step);
+    const TruthTrack truth = true_track(truth_eph, years.front(), years.back(), step);
     std::size_t inside = 0;
     s.closest_arcmin = INFINITY;
     for (std::size_t k = 0; k < years.size() && k < truth.points.size(); ++k) {

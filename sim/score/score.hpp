@@ -10,13 +10,10 @@
 #include <vector>
 
 #include "sim/solve/solve.hpp"
+#include "sim/score/truth_ephemeris.hpp"
 #include "sim/truth/answer_key.hpp"
 
 namespace wayward {
-
-struct TruthTrack {
-    std::vector<TrackPoint> points;  // true apparent position of the hidden body
-};
 
 struct LuckPoint {
     double year = 0.0;
@@ -38,11 +35,10 @@ struct Score {
     std::string hidden_name;
 };
 
-// The true apparent track of the hidden body between two years (from the answer key), at a step in years.
-TruthTrack true_track(const Brief& brief, const AnswerKey& key, double year_from, double year_to, double step_years);
-
 // Scores a prediction (track optional) against the truth. The window defaults to +- 60 years, clipped to the span.
 Score score_prediction(const Brief& brief, const AnswerKey& key, const Prediction& prediction, double window_years = 60.0);
+// The same against a truth already integrated (integrate_truth), so several predictions share one integration.
+Score score_prediction(const Brief& brief, const TruthEphemeris& truth, const Prediction& prediction, double window_years = 60.0);
 
 // Writes luck.csv and luck.png beside each other.
 void write_luck(const Score& s, const std::string& csv_path, const std::string& png_path, const std::string& title);
