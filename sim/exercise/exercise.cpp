@@ -11,6 +11,7 @@
 #include <toml++/toml.h>
 
 #include "sim/base/errors.hpp"
+#include "sim/base/format.hpp"
 #include "sim/base/units.hpp"
 #include "sim/io/fileio.hpp"
 #include "sim/io/hash.hpp"
@@ -32,15 +33,7 @@ ExercisePaths exercise_paths(const std::string& dir, const std::string& key_dir)
     return {dir, key_dir.empty() ? dir + "/answer-key" : key_dir};
 }
 
-namespace {
-
-std::string fmt(const char* f, double v) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, f, v);
-    return buf;
-}
-
-}  // namespace
+using detail::fmt;
 
 namespace detail {
 

@@ -11,6 +11,7 @@
 #include <toml++/toml.h>
 
 #include "sim/base/errors.hpp"
+#include "sim/base/format.hpp"
 #include "sim/base/units.hpp"
 #include "sim/io/fileio.hpp"
 #include "sim/io/hash.hpp"
@@ -26,15 +27,7 @@ using detail::read_elements;
 using detail::toml_text;
 using detail::vec_array;
 
-namespace {
-
-std::string fmt(const char* f, double v) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, f, v);
-    return buf;
-}
-
-}  // namespace
+using detail::fmt;
 
 System AnswerKey::system() const { return make_system(star_name, star_mass, bodies); }
 

@@ -11,6 +11,7 @@
 #include <toml++/toml.h>
 
 #include "sim/base/errors.hpp"
+#include "sim/base/format.hpp"
 #include "sim/base/units.hpp"
 #include "sim/io/fileio.hpp"
 #include "sim/io/hash.hpp"
@@ -20,15 +21,7 @@ namespace wayward {
 
 namespace fs = std::filesystem;
 
-namespace {
-
-std::string fmt(const char* f, double v) {
-    char buf[64];
-    std::snprintf(buf, sizeof buf, f, v);
-    return buf;
-}
-
-}  // namespace
+using detail::fmt;
 
 Brief make_brief(const Scenario& sc, const Truth& truth, std::uint64_t seed) {
     Brief b;
