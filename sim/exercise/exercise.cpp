@@ -123,6 +123,7 @@ std::string format_brief(const Brief& b) {
     }
     obs.insert("era", eras);
     root.insert("observing", obs);
+    if (b.telescope) root.insert("telescope", detail::telescope_table(*b.telescope));
     return "# Wayward exercise brief: what the team knows. The answer key is sealed; its SHA-256 is below.\n" + toml_text(root);
 }
 
@@ -286,6 +287,10 @@ Brief load_brief(const std::string& path) {
             b.eras.push_back(era);
         }
         r.finish();
+    }
+    if (const toml::table* tel = root.table("telescope")) {
+        TableReader r(*tel, path, "telescope");
+        b.telescope = detail::read_telescope(r);
     }
     root.finish();
     int observers = 0;

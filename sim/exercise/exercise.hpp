@@ -9,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "sim/exercise/telescope.hpp"
 #include "sim/physics/system.hpp"
 
 namespace wayward {
@@ -53,6 +54,7 @@ struct Brief {
     std::vector<double> search_epochs_year;
     double field_radius_deg = 1.0;
     std::vector<BriefEra> eras;
+    std::optional<Telescope> telescope;  // the site and telescope for the search rehearsal, when the scenario gives one
     std::string answer_key_sha256;
     std::size_t observer_index() const;  // index into planets
 };

@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "sim/base/random.hpp"
+#include "sim/exercise/telescope.hpp"
 #include "sim/physics/system.hpp"
 
 namespace wayward {
@@ -45,6 +46,9 @@ struct BodySpec {
     // ... or a heliocentric state vector (au, au/d) in a stated frame.
     enum class Frame { reference, equatorial } frame = Frame::reference;
     std::array<double, 3> position{}, velocity{};
+    // A hidden body's surface, for its brightness in the search rehearsal (answer key only): radius in km and
+    // geometric albedo. Absent: a radius from the mass at an ice-giant density and albedo 0.3 (generate.cpp).
+    std::optional<Param> radius_km, albedo;
 };
 
 // Known planets drawn as a family (count and geometric spacing with scatter), in addition to listed bodies.
@@ -114,6 +118,7 @@ struct Scenario {
     FamilySpec family;
     ObservingPlan plan;
     PlausibilityRules rules;
+    std::optional<Telescope> telescope;  // the team's site and telescope for the search rehearsal ([telescope])
 
     bool all_fixed() const;
 };

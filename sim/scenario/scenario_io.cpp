@@ -187,6 +187,12 @@ BodySpec read_body(const toml::table& t, const std::string& file, std::size_t in
         if (!m) r.fail("mean_anomaly_deg", "is required (mean anomaly at epoch 0, degrees)");
         b.mean_anomaly_deg = *m;
     }
+    b.radius_km = read_param(r, "radius_km");
+    b.albedo = read_param(r, "albedo");
+    if ((b.radius_km || b.albedo) && b.role != Role::hidden)
+        r.fail(b.radius_km ? "radius_km" : "albedo", "only the hidden body has a surface in the scenario (for the search rehearsal)");
+    if (b.radius_km) check_range(r, "radius_km", *b.radius_km, 0.0, 2.0e5, true, false, "must be positive and at most 200000 km");
+    if (b.albedo) check_range(r, "albedo", *b.albedo, 0.0, 1.5, true, false, "must be in (0, 1.5] (geometric albedo)");
     r.finish();
     return b;
 }
@@ -271,6 +277,10 @@ Scenario parse_scenario(const std::string& text, const std::string& file) {
                          "no observer: mark exactly one known planet with observer = true");
 
     read_observing_plan(root, sc);
+    if (const toml::table* tel = root.table("telescope")) {
+        TableReader r(*tel, file, "telescope");
+        sc.telescope = detail::read_telescope(r);
+    }
     root.finish();
     return sc;
 }

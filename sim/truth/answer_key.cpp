@@ -70,6 +70,10 @@ std::string answer_key_text(const Scenario& sc, const Truth& truth, const std::s
         t.insert("mass", d.mass);
         t.insert("helio_position_au", vec_array(d.helio.position));
         t.insert("helio_velocity_au_per_day", vec_array(d.helio.velocity));
+        if (d.radius_km > 0.0) {
+            t.insert("radius_km", d.radius_km);
+            t.insert("geometric_albedo", d.geometric_albedo);
+        }
         bodies.push_back(t);
     }
     root.insert("body", bodies);
@@ -113,6 +117,10 @@ AnswerKey open_answer_key(const Brief& brief, const std::string& key_path) {
         if (!vel || vel->size() != 3) r.fail("helio_velocity_au_per_day", "needs three numbers");
         d.helio.position = Vec3((*pos)[0], (*pos)[1], (*pos)[2]);
         d.helio.velocity = Vec3((*vel)[0], (*vel)[1], (*vel)[2]);
+        d.radius_km = r.number_or("radius_km", 0.0);
+        if (!(d.radius_km >= 0.0)) r.fail("radius_km", "must not be negative");
+        d.geometric_albedo = r.number_or("geometric_albedo", 0.0);
+        if (!(d.geometric_albedo >= 0.0)) r.fail("geometric_albedo", "must not be negative");
         r.finish();
         if (d.role == Role::hidden) k.hidden_name = d.name;
         k.bodies.push_back(d);

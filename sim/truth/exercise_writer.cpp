@@ -57,6 +57,7 @@ Brief make_brief(const Scenario& sc, const Truth& truth, std::uint64_t seed) {
     b.elongation_limit_deg = plan.elongation_limit_deg;
     b.search_epochs_year = plan.search_epochs_year;
     b.field_radius_deg = plan.field_radius_deg;
+    b.telescope = sc.telescope;
     for (const Era& e : plan.eras) b.eras.push_back({e.label, e.start_year, e.end_year, e.per_season, e.precision_arcsec, e.records_sigma});
     return b;
 }

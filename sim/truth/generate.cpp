@@ -172,6 +172,23 @@ Plausibility check_dynamics(const Truth& t, const PlausibilityRules& rules, cons
     return {};
 }
 
+// The hidden body's radius and geometric albedo, from a stream of their own so that every other draw is the same
+// with or without them. Absent from the scenario: the radius of a sphere of the body's mass at 1.64 g/cm^3 (an
+// ice giant's mean density, from memory) and albedo 0.3 (common practice for a cloud-topped giant).
+static void draw_surfaces(const Scenario& sc, std::uint64_t seed, Truth& t) {
+    Rng rng = make_rng(seed, "surface");
+    constexpr double solar_mass_kg = 1.98847e30;  // IAU 2015 nominal GM_sun / G (from memory)
+    constexpr double density_kg_m3 = 1640.0;
+    for (DrawnBody& d : t.bodies) {
+        if (d.role != Role::hidden) continue;
+        const BodySpec* spec = nullptr;
+        for (const BodySpec& b : sc.bodies) if (b.name == d.name) spec = &b;
+        const double radius_m = std::cbrt(3.0 * d.mass * solar_mass_kg / (4.0 * pi * density_kg_m3));
+        d.radius_km = spec && spec->radius_km ? spec->radius_km->draw(rng) : radius_m / 1000.0;
+        d.geometric_albedo = spec && spec->albedo ? spec->albedo->draw(rng) : 0.3;
+    }
+}
+
 // Light from 100 au takes 0.58 d; the ephemeris starts this early so every light-time correction is covered.
 constexpr double light_time_margin_days = 2.0;
 
@@ -188,6 +205,7 @@ Truth generate(const Scenario& sc, std::uint64_t seed, IntegrationResult* run, c
             IntegrationResult r = integrate(t.system, -light_time_margin_days, t.span_days, options);
             p = check_dynamics(t, sc.rules, r);
             if (p.ok) {
+                draw_surfaces(sc, seed, t);
                 if (run) *run = std::move(r);
                 return t;
             }

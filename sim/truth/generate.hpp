@@ -22,6 +22,8 @@ struct DrawnBody {
     double mass = 0.0;          // solar masses
     Elements elements;          // heliocentric osculating elements at epoch 0 (reference frame)
     StateVector helio;          // heliocentric state at epoch 0 (reference frame)
+    double radius_km = 0.0;     // hidden body only (0: none recorded): its surface, for the search rehearsal
+    double geometric_albedo = 0.0;
 };
 
 struct Truth {
