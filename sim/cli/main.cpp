@@ -6,6 +6,7 @@
 #include <CLI/CLI.hpp>
 
 #include "sim/commands/commands.hpp"
+#include "sim/commands/search_command.hpp"
 #include "sim/base/errors.hpp"
 
 int main(int argc, char** argv) {
@@ -61,6 +62,17 @@ int main(int argc, char** argv) {
     c_score->add_option("--prediction", scr.prediction_file, "a TOML file with lon_deg, lat_deg, epoch_year");
     c_score->add_option("--window", scr.window_years, "luck-curve half-window (years)")->capture_default_str();
 
+    SearchArgs srch;
+    auto* c_search = app.add_subcommand("search", "rehearse the telescope search: plan fields from the solution, observe night by night, settle candidates by revisits");
+    c_search->add_option("exercise", srch.dir, "exercise folder")->required();
+    c_search->add_option("--solution", srch.solution, "solution file (default EXERCISE/solution.toml)");
+    c_search->add_option("--nights", srch.nights, "nights to search")->capture_default_str();
+    c_search->add_option("--start", srch.start_year, "year of the first night (default: the solution's epoch)");
+    c_search->add_option("--strategy", srch.strategy, "probability, sweep, spiral or plan (default probability; plan with --plan)");
+    c_search->add_option("--telescope", srch.telescope_file, "a TOML file with a [telescope] table (default: the brief's)");
+    c_search->add_option("--plan", srch.plan_file, "your own plan: CSV of night,lon_deg,lat_deg");
+    c_search->add_option("--seed", srch.seed, "seed of the weather, the sky and the detections")->capture_default_str();
+
     CampaignArgs cmp;
     auto* c_campaign = app.add_subcommand("campaign", "run (or resume) a campaign: many exercises solved and scored, with a report");
     c_campaign->add_option("spec", cmp.spec, "campaign spec (TOML)")->required();
@@ -106,6 +118,7 @@ int main(int argc, char** argv) {
         if (c_res->parsed()) return run_residuals(res, std::cout, std::cerr);
         if (c_solve->parsed()) return run_solve(sv, std::cout, std::cerr);
         if (c_score->parsed()) return run_score(scr, std::cout);
+        if (c_search->parsed()) return run_search(srch, std::cout);
         if (c_campaign->parsed()) return run_campaign_command(cmp, std::cout, std::cerr);
         if (c_merge->parsed()) return run_merge(mrg, std::cout);
         if (c_budget->parsed()) return run_budget_command(bud, std::cout, std::cerr);

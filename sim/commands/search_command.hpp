@@ -1,0 +1,34 @@
+// `wayward search DIR`: the telescope search rehearsed between solve and score. Reads the brief, the team's
+// solution and its telescope (the brief's, or --telescope FILE), plans and runs the nights against the sealed
+// truth, and writes DIR/search/plan.csv, log.csv, summary.txt and search.png. Every input is read and checked
+// before anything is written.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <ostream>
+#include <string>
+
+namespace wayward {
+
+struct SearchArgs {
+    std::string dir;
+    std::string solution;            // default DIR/solution.toml
+    int nights = 30;
+    std::optional<double> start_year;  // default: the solution's prediction epoch
+    std::optional<std::string> strategy;  // default: probability (plan when --plan is given)
+    std::string telescope_file;      // overrides the brief's telescope
+    std::string plan_file;           // the team's own plan (night,lon_deg,lat_deg)
+    std::uint64_t seed = 1;          // weather, sky, chart and detections
+};
+int run_search(const SearchArgs& args, std::ostream& out);
+
+struct RehearsalResult;
+// The files' texts (public for the tests' byte-for-byte comparisons).
+std::string search_plan_csv(const RehearsalResult& r);
+std::string search_log_csv(const RehearsalResult& r, double epoch0_year);
+
+// The caution printed with every plan of pointings.
+extern const char* const search_caution;
+
+}  // namespace wayward

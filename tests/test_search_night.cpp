@@ -1,0 +1,179 @@
+// The search rehearsal night by night, on the quick scenario's truth: a bright body at the region's centre is
+// found on night 1 with a revisit; one 3 mag below the limit, or outside every field, never is; false
+// candidates are all rejected; no pointing breaks the rules over many random plans; the same inputs give the
+// same plan and log byte for byte; the apparent retrograde rate at opposition.
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <memory>
+
+#include "sim/base/random.hpp"
+#include "sim/base/units.hpp"
+#include "sim/commands/search_command.hpp"
+#include "sim/night/rehearsal.hpp"
+#include "sim/physics/elements.hpp"
+#include "solve_helpers.hpp"
+#include "test_helpers.hpp"
+
+using namespace wayward;
+
+namespace {
+
+struct World {
+    testing::MadeExercise made;
+    std::unique_ptr<TruthEphemeris> truth;
+    double h = 0.0;
+    double opposition_year = 0.0;
+};
+
+// The quick scenario's truth, integrated once for every case here, and a date near the body's opposition.
+const World& world() {
+    static const World w = [] {
+        World x;
+        x.made = testing::make_exercise(load_scenario(testing::source_path("scenarios/quick.toml")), 1);
+        x.truth = std::make_unique<TruthEphemeris>(integrate_truth(x.made.ex.exercise.brief, x.made.ex.key));
+        x.h = hidden_absolute_magnitude(x.made.ex.key);
+        const Brief& b = x.made.ex.exercise.brief;
+        const double d0 = days_from_year(b.epoch0_year, b.search_epochs_year.front());
+        double best = -1.0;
+        for (double d = d0; d < d0 + 400.0; d += 1.0) {
+            const double e = elongation(x.truth->run.ephemeris, x.truth->observer, x.truth->hidden, d);
+            if (e > best) { best = e; x.opposition_year = decimal_year(b.epoch0_year, d); }
+        }
+        return x;
+    }();
+    return w;
+}
+
+// A solution that predicts the true track, shifted by `offset_lat_deg`, with a `sigma_arcsec` circle.
+Solution solution_at_truth(double sigma_arcsec, double offset_lat_deg = 0.0) {
+    const World& w = world();
+    Solution s;
+    s.exercise_sha256 = w.made.ex.exercise.brief.answer_key_sha256;
+    const double y = w.opposition_year;
+    Prediction& p = s.prediction;
+    p.epoch_year = y;
+    const TrackPoint t = w.truth->at_year(y);
+    p.lon = t.lon;
+    p.lat = t.lat + offset_lat_deg * deg;
+    const double d = days_from_year(w.truth->epoch0_year, y);
+    p.distance_au = apparent(w.truth->run.ephemeris, w.truth->frame, w.truth->observer, w.truth->hidden, d).sky.distance;
+    p.cov_ll = p.cov_bb = sigma_arcsec * sigma_arcsec;
+    p.semi_major_arcsec = p.semi_minor_arcsec = sigma_arcsec;
+    for (const TrackPoint& q : true_track(*w.truth, y - 0.5, y + 0.5, 0.02).points) p.track.push_back({q.year, q.lon, q.lat + offset_lat_deg * deg});
+    return s;
+}
+
+// A small-field telescope on the body's latitude (it passes near the zenith at midnight), always clear.
+Telescope test_telescope(double limiting_mag) {
+    Telescope t;
+    t.field_of_view_deg = 0.2;
+    t.limiting_mag = limiting_mag;
+    t.chart_limit_mag = limiting_mag + 0.5;
+    t.detection_max = 1.0;
+    t.site_latitude_deg = world().truth->at_year(world().opposition_year).lat / deg;
+    t.clear_fraction = 1.0;
+    t.weather_correlation = 0.0;
+    t.astrometric_error_arcsec = 0.3;
+    return t;
+}
+
+RehearsalResult rehearse(const Solution& s, const Telescope& tel, int nights, RehearsalOptions opt = {}) {
+    opt.nights = nights;
+    opt.start_year = world().opposition_year - 0.5 / 365.25;
+    opt.region_samples = 1000;
+    return run_rehearsal(world().made.ex.exercise.brief, s, tel, *world().truth, world().h, opt);
+}
+
+double body_mag() {
+    static const double m = rehearse(solution_at_truth(10.0), test_telescope(12.0), 1).body_mag_first_night;
+    return m;
+}
+
+}  // namespace
+
+TEST_CASE("apparent retrograde rate at opposition from circular orbits") {
+    // Circular-orbit speeds v = k / sqrt(a) (Kepler's third law with Gauss's k), relative speed over the
+    // distance between the orbits: 100.01"/day at 30 au, 76.59 at 40, 52.37 at 60 (derived).
+    CHECK(std::abs(opposition_rate(30.0, 1.0, 1.0) / arcsec - 100.01) < 0.01);
+    CHECK(std::abs(opposition_rate(40.0, 1.0, 1.0) / arcsec - 76.59) < 0.01);
+    CHECK(std::abs(opposition_rate(60.0, 1.0, 1.0) / arcsec - 52.37) < 0.01);
+}
+
+TEST_CASE("the truth's body moves backwards at opposition") {
+    const World& w = world();
+    const TrackPoint a = w.truth->at_year(w.opposition_year), b = w.truth->at_year(w.opposition_year + 1.0 / 365.25);
+    CHECK(wrap_pi(b.lon - a.lon) < 0.0);  // retrograde near opposition (geometry of the two orbits)
+}
+
+TEST_CASE("a bright body at the region's centre in clear weather is found on night 1 with a revisit") {
+    const RehearsalResult r = rehearse(solution_at_truth(10.0), test_telescope(body_mag() + 3.0), 1);
+    CHECK(r.found);
+    CHECK(r.found_night == 1);
+    bool revisit = false;
+    for (const VisitRecord& v : r.log) revisit |= v.visit == 2 && v.confirmed > 0;
+    CHECK(revisit);
+    CHECK(r.false_confirmations == 0);
+    // Found where the truth puts it, to a few astrometric errors.
+    const TrackPoint t = world().truth->at_year(r.found_year);
+    CHECK(separation(t.lon, t.lat, r.found_lon, r.found_lat) / arcsec < 3.0);
+}
+
+TEST_CASE("a body 3 magnitudes below the limit is never found") {
+    const RehearsalResult r = rehearse(solution_at_truth(10.0), test_telescope(body_mag() - 3.0), 3);
+    CHECK(!r.found);
+    int observed = 0;
+    for (const VisitRecord& v : r.log) observed += v.outcome == VisitOutcome::observed ? 1 : 0;
+    CHECK(observed >= 3);  // the field over the body was looked at every night
+}
+
+TEST_CASE("a body outside every field is never found, and every false candidate is rejected") {
+    RehearsalOptions opt;
+    opt.chart.spurious_detections_per_field = 4.0;  // plenty of false candidates to settle
+    const RehearsalResult r = rehearse(solution_at_truth(10.0, 3.0), test_telescope(body_mag() + 3.0), 3, opt);
+    CHECK(!r.found);
+    CHECK(r.false_candidates > 0);
+    CHECK(r.false_confirmations == 0);
+    CHECK(r.false_candidate_hours > 0.0);
+}
+
+TEST_CASE("over many random plans no pointing is near the star, low or in daylight") {
+    const World& w = world();
+    const Brief& b = w.made.ex.exercise.brief;
+    Rng rng = make_rng(7, "random plans");
+    const Telescope tel = test_telescope(12.0);
+    int observed = 0, refused = 0;
+    for (int plan = 0; plan < 8; ++plan) {
+        RehearsalOptions opt;
+        opt.strategy = strategy_by_name("plan");
+        for (int night = 1; night <= 2; ++night)
+            for (int k = 0; k < 40; ++k)
+                opt.plan.push_back({night, uniform(rng, 0.0, two_pi), std::asin(uniform(rng, -1.0, 1.0)), 0});
+        const RehearsalResult r = rehearse(solution_at_truth(10.0), tel, 2, opt);
+        for (const VisitRecord& v : r.log) {
+            if (v.outcome == VisitOutcome::observed || v.outcome == VisitOutcome::revisit) {
+                ++observed;
+                CHECK(v.elongation >= b.elongation_limit_deg * deg);
+                CHECK(v.altitude >= tel.min_altitude_deg * deg);
+                CHECK(v.star_altitude <= -tel.dark_depression_deg * deg);
+            } else if (v.outcome != VisitOutcome::cloudy) {
+                ++refused;
+            }
+        }
+    }
+    CHECK(observed > 50);
+    // The team's own orbit of its planet is good enough that the truth almost never has to refuse a pointing.
+    CHECK(refused <= observed / 100);
+}
+
+TEST_CASE("the same inputs give the same plan and log, byte for byte") {
+    RehearsalOptions opt;
+    opt.strategy = strategy_by_name("spiral");
+    const Telescope tel = test_telescope(body_mag() - 3.0);
+    const RehearsalResult a = rehearse(solution_at_truth(600.0), tel, 2, opt);
+    const RehearsalResult b = rehearse(solution_at_truth(600.0), tel, 2, opt);
+    const double y0 = world().made.ex.exercise.brief.epoch0_year;
+    CHECK(search_plan_csv(a) == search_plan_csv(b));
+    CHECK(search_log_csv(a, y0) == search_log_csv(b, y0));
+    CHECK(a.log.size() > 10);
+}
