@@ -142,7 +142,7 @@ TEST_CASE("over many random plans no pointing is near the star, low or in daylig
     const Brief& b = w.made.ex.exercise.brief;
     Rng rng = make_rng(7, "random plans");
     const Telescope tel = test_telescope(12.0);
-    int observed = 0, refused = 0;
+    int observed = 0, refused = 0, kept_from_star = 0;
     for (int plan = 0; plan < 8; ++plan) {
         RehearsalOptions opt;
         opt.strategy = strategy_by_name("plan");
@@ -150,7 +150,9 @@ TEST_CASE("over many random plans no pointing is near the star, low or in daylig
             for (int k = 0; k < 40; ++k)
                 opt.plan.push_back({night, uniform(rng, 0.0, two_pi), std::asin(uniform(rng, -1.0, 1.0)), 0});
         const RehearsalResult r = rehearse(solution_at_truth(10.0), tel, 2, opt);
+        kept_from_star += r.fields_kept_from_star;
         for (const VisitRecord& v : r.log) {
+            CHECK(v.outcome != VisitOutcome::refused_near_star);  // the plan never even tried one
             if (v.outcome == VisitOutcome::observed || v.outcome == VisitOutcome::revisit) {
                 ++observed;
                 CHECK(v.elongation >= b.elongation_limit_deg * deg);
@@ -162,6 +164,8 @@ TEST_CASE("over many random plans no pointing is near the star, low or in daylig
         }
     }
     CHECK(observed > 50);
+    // About 7 % of random directions lie within 30 deg of the star (a cap of (1 - cos 30 deg) / 2 of the sphere).
+    CHECK(kept_from_star > 10);
     // The team's own orbit of its planet is good enough that the truth almost never has to refuse a pointing.
     CHECK(refused <= observed / 100);
 }

@@ -74,6 +74,9 @@ std::string summary_text(const RehearsalResult& r, const Brief& b, const Telesco
     else
         o << "Not found in " << r.nights.size() << " night" << (r.nights.size() == 1 ? "" : "s") << " (" << fmt("%.1f", r.hours_used)
           << " h of telescope time).\n";
+    if (r.fields_kept_from_star > 0)
+        o << "Kept away from the star: " << r.fields_kept_from_star << " field-night" << (r.fields_kept_from_star == 1 ? "" : "s")
+          << " nearer than the elongation limit (" << fmt("%.0f", b.elongation_limit_deg) << " deg) never scheduled.\n";
     o << "False candidates chased: " << r.false_candidates << " (" << fmt("%.1f", r.false_candidate_hours)
       << " h of revisits found nothing), " << r.open_candidates << " left open.\n";
     // The truth, now that the search is over.

@@ -245,11 +245,21 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
         for (const Field& f : fields) offsets.push_back(as_offset(out.region, f, mid_year));
         const std::vector<double> prob = field_probabilities(out.region, tel, offsets);
         const std::vector<std::size_t> order = night_order(opt.strategy, out.region, offsets, prob, covered);
+        // The night's plan: fields in order as far as the dark hours reach, never one too near the star (a field
+        // that is, stays out of tonight's order altogether).
         const auto capacity = static_cast<std::size_t>(std::max(0.0, night.dark_hours() * 60.0 / tel.minutes_per_field()));
-        for (std::size_t k = 0; k < order.size() && k < capacity; ++k) {
+        const double mid_days = 0.5 * (night.dark_start_days + night.dark_end_days);
+        std::vector<bool> near_star(fields.size(), false);
+        std::size_t listed = 0;
+        for (std::size_t k = 0; k < order.size(); ++k) {
             double lon = 0.0, lat = 0.0;
             field_centre(out.region, fields[order[k]], mid_year, lon, lat);
-            out.plan.push_back({night.index, static_cast<int>(k + 1), fields[order[k]].id, lon, lat, prob[order[k]]});
+            if (check_pointing(site, team_path, unit_vector(lon, lat), mid_days).outcome == Pointing::too_near_star) {
+                near_star[order[k]] = true;
+                ++out.fields_kept_from_star;
+                continue;
+            }
+            if (listed < capacity) out.plan.push_back({night.index, static_cast<int>(++listed), fields[order[k]].id, lon, lat, prob[order[k]]});
         }
 
         if (!clear) {
@@ -262,7 +272,7 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
             for (Pending& p : pending) p.next_night = false;  // due as soon as the next clear night allows
             continue;
         }
-        std::vector<bool> done(fields.size(), false);
+        std::vector<bool> done = near_star;
         for (double t = night.dark_start_days; t + dt_field <= night.dark_end_days && !out.found;) {
             auto team_ok = [&](const Field& f) {
                 double lon = 0.0, lat = 0.0;

@@ -79,6 +79,7 @@ struct RehearsalResult {
     double false_candidate_hours = 0.0; // telescope time spent on revisits that found only false candidates
     int open_candidates = 0;            // never settled
     int fields_planned = 0;
+    int fields_kept_from_star = 0;     // field-nights left out of the plan for being too near the star
     long chart_entries = 0;
     std::vector<Field> fields;
     SearchRegion region;               // with its weights at the end
