@@ -181,3 +181,17 @@ TEST_CASE("the same inputs give the same plan and log, byte for byte") {
     CHECK(search_log_csv(a, y0) == search_log_csv(b, y0));
     CHECK(a.log.size() > 10);
 }
+
+TEST_CASE("the probability covered never falls from one night to the next, cloudy nights included") {
+    Telescope tel = test_telescope(body_mag() - 3.0);
+    tel.clear_fraction = 0.5;
+    tel.weather_correlation = 0.5;
+    const RehearsalResult r = rehearse(solution_at_truth(1800.0), tel, 8);
+    int cloudy = 0;
+    for (std::size_t k = 0; k < r.nights.size(); ++k) {
+        cloudy += r.nights[k].clear ? 0 : 1;
+        if (k > 0) CHECK(r.nights[k].probability_covered >= r.nights[k - 1].probability_covered);
+    }
+    CHECK(cloudy > 0);
+    CHECK(cloudy < 8);
+}

@@ -262,7 +262,13 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
             if (listed < capacity) out.plan.push_back({night.index, static_cast<int>(++listed), fields[order[k]].id, lon, lat, prob[order[k]]});
         }
 
+        auto covered_fraction = [&c] {
+            double seen = 0.0;
+            for (bool s : c.seen) seen += s ? 1.0 : 0.0;
+            return c.seen.empty() ? 0.0 : seen / static_cast<double>(c.seen.size());
+        };
         if (!clear) {
+            rec.probability_covered = covered_fraction();  // unchanged by a cloudy night
             VisitRecord v;
             v.night = night.index;
             v.t_days = night.dark_start_days;
@@ -327,9 +333,7 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
             out.log.push_back(v);
         }
         for (Pending& p : pending) p.next_night = false;
-        double seen = 0.0;
-        for (bool s : c.seen) seen += s ? 1.0 : 0.0;
-        rec.probability_covered = c.seen.empty() ? 0.0 : seen / static_cast<double>(c.seen.size());
+        rec.probability_covered = covered_fraction();
         out.hours_used += rec.hours_used;
         out.nights.push_back(rec);
         if (out.found) break;
