@@ -61,6 +61,11 @@ TEST_CASE("wayward search writes its folder, prints the caution, and repeats its
     CHECK(testing::read(dir / "search/plan.csv") == plan);
     CHECK(testing::read(dir / "search/log.csv") == log);
     CHECK(a.output == b.output);
+    // --telescope replaces the brief's telescope.
+    testing::write(dir / "scope.toml", "[telescope]\nfield_of_view_deg = 0.5\nlimiting_mag = 12.0\n");
+    const auto c = testing::run_cli("search " + dir.string() + " --nights 1 --telescope " + (dir / "scope.toml").string());
+    REQUIRE(c.status == 0);
+    CHECK(c.output.find("0.50 deg square field, limit 12.0 mag") != std::string::npos);
 }
 
 TEST_CASE("bad telescope or plan input: exit 2 naming file, line and field, nothing written") {

@@ -131,3 +131,28 @@ TEST_CASE("sky cells: the same cell gives the same stars, counts follow the law"
         CHECK(inside);
     }
 }
+
+TEST_CASE("darkness: at the equator with the axis normal to the orbit, 24 h minus two 1.2 h twilights") {
+    // The star on the celestial equator seen from latitude 0 sinks 15 deg per hour, so astronomical twilight
+    // (18 deg, common practice) lasts 1.2 h at each end of a 12 h night: 9.6 h of darkness (geometry).
+    Site site;
+    site.rotation_period_days = 1.0;
+    site.dark_depression = 18.0 * deg;
+    site.min_altitude = 30.0 * deg;
+    site.elongation_limit = 30.0 * deg;
+    // An observer on a circular 1 au orbit whose year is long against the day (the star barely moves nightly).
+    const ObserverPath path = [](double t) { const double a = two_pi * t / 36525.0; return Vec3(std::cos(a), std::sin(a), 0.0); };
+    const auto nights = nights_from(site, path, 0.0, 3, 1.0);
+    REQUIRE(nights.size() == 3);
+    for (const Night& n : nights) {
+        CHECK(std::abs(n.dark_hours() - 9.6) < 0.1);
+        CHECK(std::abs((n.end_days - n.start_days) - 1.0) < 0.01);
+    }
+    // Opposite the star, a direction on the equator is at the zenith in the middle of the night and observable
+    // for as long as it is above 30 deg in darkness: +-60 deg of hour angle = 8 h, all of it dark.
+    const Night& n = nights[1];
+    const Vec3 anti = -(-path(0.5 * (n.dark_start_days + n.dark_end_days)));
+    CHECK(std::abs(observable_hours(site, path, n, anti, 1.0) - 8.0) < 0.1);
+    // The star's own direction is never allowed.
+    CHECK(check_pointing(site, path, -path(n.dark_start_days), n.dark_start_days).outcome == Pointing::too_near_star);
+}
