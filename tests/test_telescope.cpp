@@ -104,7 +104,7 @@ TEST_CASE("every bundled scenario has a telescope and a surface for its hidden b
     }
 }
 
-TEST_CASE("the telescope reaches the brief; the surface stays in the answer key") {
+TEST_CASE("the telescope reaches the brief and the surface stays in the answer key") {
     const Scenario sc = load_scenario(testing::source_path("scenarios/quick.toml"));
     IntegrationResult run;
     const Truth truth = generate(sc, 3, &run);

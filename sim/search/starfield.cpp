@@ -88,10 +88,14 @@ std::vector<Star> generate_star_field(const StarFieldSpec& spec) {
 }
 
 double DensityBand::mean_unnormalised() const {
+    if (cached_amplitude_ == amplitude && cached_width_ == width) return cached_mean_;
     // The mean over the sphere of a profile in b (the angle from the band's circle): (1/2) int cos b f(b) db.
     // Gauss-Kronrod from Boost.Math rather than a hand-written rule.
     const auto f = [this](double b) { return 0.5 * std::cos(b) * (1.0 + amplitude * std::exp(-(b / width) * (b / width))); };
-    return boost::math::quadrature::gauss_kronrod<double, 61>::integrate(f, -pi / 2, pi / 2, 10, 1e-12);
+    cached_mean_ = boost::math::quadrature::gauss_kronrod<double, 61>::integrate(f, -pi / 2, pi / 2, 10, 1e-12);
+    cached_amplitude_ = amplitude;
+    cached_width_ = width;
+    return cached_mean_;
 }
 
 double DensityBand::factor(double lon, double lat) const {

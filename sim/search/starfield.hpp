@@ -66,6 +66,10 @@ struct DensityBand {
     double width = 15.0 * 0.017453292519943295;  // radians
     double factor(double lon, double lat) const;
     double mean_unnormalised() const;  // the sphere's mean of 1 + amplitude exp(-(b/width)^2)
+
+private:
+    // The mean for the amplitude and width it was last computed for (a quadrature, so kept).
+    mutable double cached_mean_ = 0.0, cached_amplitude_ = -1.0, cached_width_ = -1.0;
 };
 
 // The sky for the search: fixed cells (rings of cell_deg in latitude, each ring cut into equal cells of about
