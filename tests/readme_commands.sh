@@ -20,7 +20,7 @@ for c in "${commands[@]}"; do
   eval "\"$wayward_bin\" ${c#wayward }" > /dev/null
 done
 # The walkthrough's outputs exist.
-for f in ex1/brief.toml ex1/observations.csv ex1/residuals.csv ex1/residuals.png ex1/solution.toml ex1/luck.csv ex1/luck.png ex1/luck_own.csv ex1/luck_own.png; do
+for f in ex1/brief.toml ex1/observations.csv ex1/residuals.csv ex1/residuals.png ex1/solution.toml ex1/luck.csv ex1/luck.png ex1/luck_own.csv ex1/luck_own.png ex1/search/plan.csv ex1/search/log.csv ex1/search/summary.txt ex1/search/search.png; do
   [ -s "$f" ] || { echo "readme_commands: $f was not written" >&2; exit 1; }
 done
 # The README states exactly two set-up commands and .ci/run calls the test one.
