@@ -176,6 +176,119 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
     return run_rehearsal(brief, solution, tel, integrate_truth(brief, key), h, opt);
 }
 
+namespace {
+
+struct NightPlan {
+    std::vector<Field> fields;
+    std::vector<std::size_t> order;
+    std::vector<bool> near_star;  // too near the star tonight: out of the order altogether
+};
+
+// Tonight's fields and their order, and the plan's rows: fields in order as far as the dark hours reach, never
+// one too near the star.
+NightPlan plan_night(NightContext& c, const Night& night, std::vector<bool>& covered) {
+    NightPlan plan;
+    RehearsalResult& out = c.out;
+    plan.fields = out.fields;
+    if (c.opt.strategy.kind == StrategyKind::plan) {
+        plan.fields.clear();
+        for (std::size_t k = 0; k < c.opt.plan.size(); ++k)
+            if (c.opt.plan[k].night == night.index)
+                plan.fields.push_back({static_cast<int>(k + 1), 0.0, 0.0, true, c.opt.plan[k].lon, c.opt.plan[k].lat});
+        covered.assign(plan.fields.size(), false);
+    }
+    const double mid_days = 0.5 * (night.dark_start_days + night.dark_end_days);
+    const double mid_year = decimal_year(c.epoch0_year, mid_days);
+    std::vector<Field> offsets;
+    for (const Field& f : plan.fields) offsets.push_back(as_offset(out.region, f, mid_year));
+    const std::vector<double> prob = field_probabilities(out.region, c.tel, offsets);
+    plan.order = night_order(c.opt.strategy, out.region, offsets, prob, covered);
+    const auto capacity = static_cast<std::size_t>(std::max(0.0, night.dark_hours() * 60.0 / c.tel.minutes_per_field()));
+    plan.near_star.assign(plan.fields.size(), false);
+    std::size_t listed = 0;
+    for (std::size_t i : plan.order) {
+        double lon = 0.0, lat = 0.0;
+        field_centre(out.region, plan.fields[i], mid_year, lon, lat);
+        if (check_pointing(c.site, c.team_path, unit_vector(lon, lat), mid_days).outcome == Pointing::too_near_star) {
+            plan.near_star[i] = true;
+            ++out.fields_kept_from_star;
+            continue;
+        }
+        if (listed < capacity) out.plan.push_back({night.index, static_cast<int>(++listed), plan.fields[i].id, lon, lat, prob[i]});
+    }
+    return plan;
+}
+
+// A clear night worked from dark to dark: a due revisit first, then the next field in the order that the team's
+// own geometry allows now; five minutes' wait when nothing does.
+void work_night(NightContext& c, const Night& night, const NightPlan& plan, std::vector<bool>& covered,
+                std::vector<Pending>& pending, NightRecord& rec) {
+    RehearsalResult& out = c.out;
+    const Telescope& tel = c.tel;
+    const double dt_field = tel.minutes_per_field() / 1440.0;
+    const double wait = 5.0 / 1440.0;
+    std::vector<bool> done = plan.near_star;
+    for (double t = night.dark_start_days; t + dt_field <= night.dark_end_days && !out.found;) {
+        auto team_ok = [&](const Field& f) {
+            double lon = 0.0, lat = 0.0;
+            const double tm = t + 0.5 * tel.exposure_min / 1440.0;
+            field_centre(out.region, f, decimal_year(c.epoch0_year, tm), lon, lat);
+            return check_pointing(c.site, c.team_path, unit_vector(lon, lat), tm).outcome == Pointing::ok;
+        };
+        std::optional<std::size_t> rv;
+        for (std::size_t k = 0; k < pending.size() && !rv; ++k) {
+            const Pending& p = pending[k];
+            const bool due = !p.next_night && ((t - p.first_t) * 1440.0 >= c.gap_minutes || p.first_t < night.start_days);
+            if (due && team_ok(p.field)) rv = k;
+        }
+        std::optional<std::size_t> fresh;
+        if (!rv)
+            for (std::size_t k : plan.order)
+                if (!done[k] && team_ok(plan.fields[k])) { fresh = k; break; }
+        if (!rv && !fresh) { t += wait; continue; }
+        const std::size_t fi = rv ? 0 : *fresh;
+        const Field target = rv ? pending[*rv].field : plan.fields[fi];
+        Exposure exposure;
+        VisitRecord v = observe(c, target, night.index, t, rv ? 2 : 1, exposure);
+        t += dt_field;
+        rec.hours_used += dt_field * 24.0;
+        if (fresh) done[fi] = true;
+        if (v.outcome != VisitOutcome::observed && v.outcome != VisitOutcome::revisit) {
+            out.log.push_back(v);
+            continue;
+        }
+        if (fresh) {
+            ++rec.fields;
+            covered[fi] = true;
+            searched(c, plan.fields[fi], t);
+            if (!exposure.candidates.empty())
+                pending.push_back({plan.fields[fi], v.t_days, exposure.candidates, c.opt.strategy.revisit_next_night, 0});
+        } else {
+            ++rec.revisits;
+            Pending& p = pending[*rv];
+            ++p.tries;
+            const bool found = settle(c, p, exposure, v.t_days, v);
+            if (found) {
+                out.found = true;
+                out.found_night = night.index;
+                out.found_year = decimal_year(c.epoch0_year, v.t_days);
+            } else if (v.open == 0) {
+                out.false_candidate_hours += tel.minutes_per_field() / 60.0;  // nothing but false candidates
+            }
+            if (p.candidates.empty() || found) pending.erase(pending.begin() + static_cast<std::ptrdiff_t>(*rv));
+        }
+        out.log.push_back(v);
+    }
+}
+
+double covered_fraction(const NightContext& c) {
+    double seen = 0.0;
+    for (bool s : c.seen) seen += s ? 1.0 : 0.0;
+    return c.seen.empty() ? 0.0 : seen / static_cast<double>(c.seen.size());
+}
+
+}  // namespace
+
 RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, const Telescope& tel, const TruthEphemeris& truth_eph,
                               double hidden_h, const RehearsalOptions& opt) {
     RehearsalResult out;
@@ -219,8 +332,6 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
     Rng weather = make_rng(opt.seed, "weather");
     bool clear = true;
     std::vector<Pending> pending;
-    const double dt_field = tel.minutes_per_field() / 1440.0;
-    const double wait = 5.0 / 1440.0;
 
     for (const Night& night : nights) {
         const double u1 = uniform01(weather), u2 = uniform01(weather);
@@ -230,110 +341,18 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
         rec.start_year = decimal_year(brief.epoch0_year, night.start_days);
         rec.clear = clear;
         rec.dark_hours = night.dark_hours();
-
-        // Tonight's fields and order.
-        std::vector<Field> fields = out.fields;
-        if (opt.strategy.kind == StrategyKind::plan) {
-            fields.clear();
-            for (std::size_t k = 0; k < opt.plan.size(); ++k)
-                if (opt.plan[k].night == night.index)
-                    fields.push_back({static_cast<int>(k + 1), 0.0, 0.0, true, opt.plan[k].lon, opt.plan[k].lat});
-            covered.assign(fields.size(), false);
-        }
-        const double mid_year = decimal_year(brief.epoch0_year, 0.5 * (night.dark_start_days + night.dark_end_days));
-        std::vector<Field> offsets;
-        for (const Field& f : fields) offsets.push_back(as_offset(out.region, f, mid_year));
-        const std::vector<double> prob = field_probabilities(out.region, tel, offsets);
-        const std::vector<std::size_t> order = night_order(opt.strategy, out.region, offsets, prob, covered);
-        // The night's plan: fields in order as far as the dark hours reach, never one too near the star (a field
-        // that is, stays out of tonight's order altogether).
-        const auto capacity = static_cast<std::size_t>(std::max(0.0, night.dark_hours() * 60.0 / tel.minutes_per_field()));
-        const double mid_days = 0.5 * (night.dark_start_days + night.dark_end_days);
-        std::vector<bool> near_star(fields.size(), false);
-        std::size_t listed = 0;
-        for (std::size_t k = 0; k < order.size(); ++k) {
-            double lon = 0.0, lat = 0.0;
-            field_centre(out.region, fields[order[k]], mid_year, lon, lat);
-            if (check_pointing(site, team_path, unit_vector(lon, lat), mid_days).outcome == Pointing::too_near_star) {
-                near_star[order[k]] = true;
-                ++out.fields_kept_from_star;
-                continue;
-            }
-            if (listed < capacity) out.plan.push_back({night.index, static_cast<int>(++listed), fields[order[k]].id, lon, lat, prob[order[k]]});
-        }
-
-        auto covered_fraction = [&c] {
-            double seen = 0.0;
-            for (bool s : c.seen) seen += s ? 1.0 : 0.0;
-            return c.seen.empty() ? 0.0 : seen / static_cast<double>(c.seen.size());
-        };
-        if (!clear) {
-            rec.probability_covered = covered_fraction();  // unchanged by a cloudy night
+        const NightPlan plan = plan_night(c, night, covered);
+        if (clear) {
+            work_night(c, night, plan, covered, pending, rec);
+        } else {
             VisitRecord v;
             v.night = night.index;
             v.t_days = night.dark_start_days;
             v.outcome = VisitOutcome::cloudy;
             out.log.push_back(v);
-            out.nights.push_back(rec);
-            for (Pending& p : pending) p.next_night = false;  // due as soon as the next clear night allows
-            continue;
         }
-        std::vector<bool> done = near_star;
-        for (double t = night.dark_start_days; t + dt_field <= night.dark_end_days && !out.found;) {
-            auto team_ok = [&](const Field& f) {
-                double lon = 0.0, lat = 0.0;
-                const double tm = t + 0.5 * tel.exposure_min / 1440.0;
-                field_centre(out.region, f, decimal_year(brief.epoch0_year, tm), lon, lat);
-                return check_pointing(site, team_path, unit_vector(lon, lat), tm).outcome == Pointing::ok;
-            };
-            // A due revisit first, then the next field in tonight's order that can be observed now.
-            std::optional<std::size_t> rv;
-            for (std::size_t k = 0; k < pending.size() && !rv; ++k) {
-                const Pending& p = pending[k];
-                const bool due = p.next_night ? false : (t - p.first_t) * 1440.0 >= c.gap_minutes || p.first_t < night.start_days;
-                if (due && team_ok(p.field)) rv = k;
-            }
-            std::optional<std::size_t> fresh;
-            if (!rv)
-                for (std::size_t k : order)
-                    if (!done[k] && team_ok(fields[k])) { fresh = k; break; }
-            if (!rv && !fresh) { t += wait; continue; }
-            const std::size_t fi = rv ? 0 : *fresh;
-            const Field target = rv ? pending[*rv].field : fields[fi];
-            Exposure exposure;
-            VisitRecord v = observe(c, target, night.index, t, rv ? 2 : 1, exposure);
-            t += dt_field;
-            rec.hours_used += dt_field * 24.0;
-            if (v.outcome != VisitOutcome::observed && v.outcome != VisitOutcome::revisit) {
-                if (fresh) done[fi] = true;
-                out.log.push_back(v);
-                continue;
-            }
-            if (fresh) {
-                done[fi] = true;
-                ++rec.fields;
-                covered[fi] = true;
-                searched(c, fields[fi], t);
-                if (!exposure.candidates.empty())
-                    pending.push_back({fields[fi], v.t_days, exposure.candidates, opt.strategy.revisit_next_night, 0});
-            } else {
-                ++rec.revisits;
-                Pending& p = pending[*rv];
-                ++p.tries;
-                const bool found = settle(c, p, exposure, v.t_days, v);
-                if (found) {
-                    out.found = true;
-                    out.found_night = night.index;
-                    out.found_year = decimal_year(brief.epoch0_year, v.t_days);
-                } else if (v.confirmed == 0 && v.open == 0) {
-                    out.false_candidate_hours += tel.minutes_per_field() / 60.0;
-                }
-                if (p.candidates.empty() || found) pending.erase(pending.begin() + static_cast<std::ptrdiff_t>(*rv));
-            }
-            out.log.push_back(v);
-        }
-        for (Pending& p : pending) p.next_night = false;
-        rec.probability_covered = covered_fraction();
+        for (Pending& p : pending) p.next_night = false;  // due as soon as the next clear night allows
+        rec.probability_covered = covered_fraction(c);  // a cloudy night keeps what was covered so far
         out.hours_used += rec.hours_used;
         out.nights.push_back(rec);
         if (out.found) break;
