@@ -55,7 +55,7 @@ TEST_CASE("wayward search writes its folder, prints the caution, and repeats its
     CHECK(a.output.find("cross-checking with the team's own software") != std::string::npos);
     for (const char* f : {"plan.csv", "log.csv", "summary.txt", "search.png"}) CHECK(fs::exists(dir / "search" / f));
     const std::string plan = testing::read(dir / "search/plan.csv"), log = testing::read(dir / "search/log.csv");
-    CHECK(plan.rfind("night,order,field,lon_deg,lat_deg,probability\n", 0) == 0);
+    CHECK(plan.rfind("night,order,field,lon_deg,lat_deg,probability,observable_hours\n", 0) == 0);
     const auto b = testing::run_cli("search " + dir.string() + " --nights 3 --strategy sweep");
     REQUIRE(b.status == 0);
     CHECK(testing::read(dir / "search/plan.csv") == plan);
@@ -102,4 +102,27 @@ TEST_CASE("bad telescope or plan input: exit 2 naming file, line and field, noth
     CHECK(s.status == 2);
     CHECK(s.output.find("--strategy") != std::string::npos);
     CHECK(!fs::exists(dir / "search"));
+}
+
+TEST_CASE("an exercise whose brief has no telescope needs --telescope") {
+    std::string text = testing::read(testing::source_path("scenarios/quick.toml"));
+    text = text.substr(0, text.find("[telescope]"));
+    const Scenario sc = parse_scenario(text, "quick-without-telescope.toml");
+    REQUIRE(!sc.telescope.has_value());
+    const fs::path d = fs::temp_directory_path() / "wayward_test_search_no_telescope";
+    fs::remove_all(d);
+    const testing::MadeExercise m = testing::make_exercise(sc, 1);
+    write_exercise(exercise_paths(d.string()), sc, m.truth, m.obs, make_brief(sc, m.truth, 1), m.run.ephemeris, true);
+    Solution sol;
+    sol.exercise_sha256 = load_brief((d / "brief.toml").string()).answer_key_sha256;
+    sol.prediction.epoch_year = 1995.0;
+    testing::write(d / "solution.toml", solution_toml(sol));
+    const auto s = testing::run_cli("search " + d.string() + " --nights 1");
+    CHECK(s.status == 2);
+    CHECK(s.output.find("brief.toml") != std::string::npos);
+    CHECK(s.output.find("field 'telescope'") != std::string::npos);
+    CHECK(!fs::exists(d / "search"));
+    testing::write(d / "scope.toml", "[telescope]\nlimiting_mag = 12.0\n");
+    CHECK(testing::run_cli("search " + d.string() + " --nights 1 --telescope " + (d / "scope.toml").string()).status == 0);
+    fs::remove_all(d);
 }

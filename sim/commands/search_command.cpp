@@ -25,9 +25,10 @@ const char* const search_caution =
     "cross-checking with the team's own software.";
 
 std::string search_plan_csv(const RehearsalResult& r) {
-    std::string s = "night,order,field,lon_deg,lat_deg,probability\n";
+    std::string s = "night,order,field,lon_deg,lat_deg,probability,observable_hours\n";
     for (const PlanEntry& p : r.plan)
-        s += std::to_string(p.night) + "," + std::to_string(p.order) + "," + std::to_string(p.field) + "," + fmt("%.5f,", p.lon / deg) + fmt("%.5f,", p.lat / deg) + fmt("%.6f\n", p.probability);
+        s += std::to_string(p.night) + "," + std::to_string(p.order) + "," + std::to_string(p.field) + "," + fmt("%.5f,", p.lon / deg) + fmt("%.5f,", p.lat / deg) + fmt("%.6f,", p.probability) +
+             fmt("%.2f\n", p.observable_hours);
     return s;
 }
 

@@ -214,7 +214,9 @@ NightPlan plan_night(NightContext& c, const Night& night, std::vector<bool>& cov
             ++out.fields_kept_from_star;
             continue;
         }
-        if (listed < capacity) out.plan.push_back({night.index, static_cast<int>(++listed), plan.fields[i].id, lon, lat, prob[i]});
+        if (listed < capacity)
+            out.plan.push_back({night.index, static_cast<int>(++listed), plan.fields[i].id, lon, lat, prob[i],
+                                observable_hours(c.site, c.team_path, night, unit_vector(lon, lat))});
     }
     return plan;
 }

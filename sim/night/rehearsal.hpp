@@ -57,6 +57,7 @@ struct VisitRecord {
 struct PlanEntry {
     int night = 0, order = 0, field = 0;
     double lon = 0.0, lat = 0.0, probability = 0.0;
+    double observable_hours = 0.0;  // in tonight's darkness above the minimum altitude (the team's geometry)
 };
 
 struct NightRecord {
