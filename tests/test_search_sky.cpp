@@ -5,6 +5,7 @@
 
 #include <cmath>
 
+#include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
 #include "sim/search/brightness.hpp"
 #include "sim/search/starfield.hpp"
@@ -153,6 +154,10 @@ TEST_CASE("darkness: at the equator with the axis normal to the orbit, 24 h minu
     const Night& n = nights[1];
     const Vec3 anti = -(-path(0.5 * (n.dark_start_days + n.dark_end_days)));
     CHECK(std::abs(observable_hours(site, path, n, anti, 1.0) - 8.0) < 0.1);
+    // A planet that turns once per orbit has no nights: refused, not searched for ever.
+    Site locked = site;
+    locked.rotation_period_days = 36525.0;
+    CHECK_THROWS_AS(nights_from(locked, path, 0.0, 1, 5.0), InputError);
     // The star's own direction is never allowed.
     CHECK(check_pointing(site, path, -path(n.dark_start_days), n.dark_start_days).outcome == Pointing::too_near_star);
 }

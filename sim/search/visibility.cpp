@@ -4,6 +4,7 @@
 #include <cmath>
 #include <limits>
 
+#include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
 #include "sim/physics/elements.hpp"
 
@@ -92,13 +93,20 @@ PointingCheck check_pointing(const Site& site, const ObserverPath& path, const V
 std::vector<Night> nights_from(const Site& site, const ObserverPath& path, double start_days, int count, double step_minutes) {
     const double step = step_minutes / 1440.0;
     // Local noon: the star's hour angle passes through zero (from 2 pi - to 0 +).
+    // A planet turning once per orbit (or nearly) never brings the star across the meridian: no nights at all.
+    const int max_steps = static_cast<int>(std::ceil(100.0 * 1440.0 / step_minutes));  // 100 days
+    const auto no_noon = [] {
+        throw InputError("", 0, "telescope.rotation_period_hours",
+                         "the star does not cross the site's meridian within 100 days: no nights to search");
+    };
     double t = start_days;
     double prev = hour_angle(site, -path(t), t);
-    for (int k = 0; k < 100000; ++k) {
+    for (int k = 0;; ++k) {
+        if (k == max_steps) no_noon();
         const double h = hour_angle(site, -path(t + step), t + step);
-        if (h < prev && prev - h > pi) { t += step; break; }
-        prev = h;
         t += step;
+        if (h < prev && prev - h > pi) break;
+        prev = h;
     }
     std::vector<Night> nights;
     for (int n = 0; n < count; ++n) {
@@ -110,7 +118,8 @@ std::vector<Night> nights_from(const Site& site, const ObserverPath& path, doubl
         prev = hour_angle(site, -path(u), u);
         double best_len = 0.0, run_start = -1.0;
         night.dark_start_days = night.dark_end_days = t;
-        for (int k = 0; k < 1000000; ++k) {
+        for (int k = 0;; ++k) {
+            if (k == max_steps) no_noon();
             const Vec3 star = -path(u);
             const bool dark = altitude_of(site, star, u) < -site.dark_depression;
             if (dark && run_start < 0.0) run_start = u;
