@@ -4,9 +4,11 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <stdexcept>
 
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
+#include "sim/model/wisdom_holman.hpp"
 
 namespace wayward {
 
@@ -22,6 +24,19 @@ Elements HiddenOrbit::elements() const {
     return el;
 }
 
+const std::vector<ModelIntegrator>& model_integrators() {
+    static const std::vector<ModelIntegrator> table = {
+        {"adaptive", "Runge-Kutta-Fehlberg 7(8), adaptive (rel_tol); the reference"},
+        {"wisdom-holman", "Wisdom-Holman map in Jacobi coordinates, fixed step, Wisdom-Holman-Touma corrector; fast"},
+    };
+    return table;
+}
+
+bool is_model_integrator(const std::string& name) {
+    const auto& t = model_integrators();
+    return std::any_of(t.begin(), t.end(), [&](const ModelIntegrator& m) { return m.name == name; });
+}
+
 bool ModelSetup::weights_estimated() const {
     return std::any_of(era_records_sigma.begin(), era_records_sigma.end(), [](bool b) { return !b; });
 }
@@ -29,6 +44,8 @@ bool ModelSetup::weights_estimated() const {
 Vec3 ModelSetup::observer_helio_at(double t) const { return inner.position(observer, t) - inner.position(0, t); }
 
 ModelSetup make_setup(const Exercise& ex, const ModelOptions& options) {
+    if (!is_model_integrator(options.integrator))
+        throw std::invalid_argument("unknown fitting-model integrator '" + options.integrator + "'");
     ModelSetup s;
     s.brief = ex.brief;
     s.options = options;
@@ -160,13 +177,25 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     const auto bary = helio_to_bary(sys.gm, rel);
     sys.state.assign(6 * sys.size(), 0.0);
     for (std::size_t i = 0; i < bary.size(); ++i) sys.set(i, bary[i]);
+    const double t0 = t_begin.value_or(setup.t_begin);
+    if (setup.options.integrator == "wisdom-holman") {
+        WisdomHolmanOptions wo;
+        wo.central_quadrupole = setup.pair_quadrupole;
+        WisdomHolmanResult r = integrate_wisdom_holman(sys, t0, std::max(t_end, t0), wo);
+        if (r.outcome != WisdomHolmanOutcome::ok) {
+            run.problem = "model integration failed: " + to_string(r.outcome);
+            return run;
+        }
+        run.outer = std::move(r.ephemeris);
+        run.ok = true;
+        return run;
+    }
     IntegratorOptions io;
     io.rel_tol = setup.options.rel_tol;
     io.central_quadrupole = setup.pair_quadrupole;
     // A trial orbit that runs into a close encounter must fail fast (the fit then rejects the step), not fill
     // memory with dense output: ordinary model runs take a few thousand steps.
     io.max_steps = 200'000;
-    const double t0 = t_begin.value_or(setup.t_begin);
     IntegrationResult r = integrate(sys, t0, std::max(t_end, t0), io);
     if (r.outcome != IntegrationOutcome::ok) {
         run.problem = "model integration failed: " + to_string(r.outcome);

@@ -40,8 +40,17 @@ struct HiddenOrbit {
 
 struct ModelOptions {
     LightTime light_time = LightTime::corrected;
-    double rel_tol = 1e-12;
+    double rel_tol = 1e-12;            // the adaptive integrator's tolerance
+    std::string integrator = "adaptive";  // a name from model_integrators()
 };
+
+// The fitting model's integrators, selectable by name (ModelOptions::integrator).
+struct ModelIntegrator {
+    std::string name;
+    std::string description;
+};
+const std::vector<ModelIntegrator>& model_integrators();
+bool is_model_integrator(const std::string& name);
 
 struct ModelState {
     std::vector<StateVector> planets;  // heliocentric states of the observed planets at epoch 0 (reference frame)

@@ -1,0 +1,114 @@
+// The fitting model's Wisdom-Holman map: agreement with the adaptive reference model on every bundled scenario,
+// energy without secular drift, the order of the map with and without the corrector, and bit-identical reruns.
+#include <doctest/doctest.h>
+
+#include <algorithm>
+#include <cmath>
+#include <vector>
+
+#include "sim/base/units.hpp"
+#include "sim/model/model.hpp"
+#include "sim/model/wisdom_holman.hpp"
+#include "solve_helpers.hpp"
+#include "test_helpers.hpp"
+
+using namespace wayward;
+
+namespace {
+
+// Angle between two sky positions (radians), small-angle form is enough at the milliarcsecond level.
+double separation(const SkyPosition& a, const SkyPosition& b) {
+    return std::hypot(wrap_pi(a.lon - b.lon) * std::cos(0.5 * (a.lat + b.lat)), a.lat - b.lat);
+}
+
+// A star, a Jupiter-like and a Saturn-like planet on mildly eccentric, slightly tilted orbits (invented).
+System two_planets(double mass_scale) {
+    Elements e1;
+    e1.semi_major_axis = 5.2;
+    e1.eccentricity = 0.05;
+    e1.inclination = 0.02;
+    e1.mean_anomaly = 0.3;
+    Elements e2;
+    e2.semi_major_axis = 9.5;
+    e2.eccentricity = 0.06;
+    e2.inclination = 0.04;
+    e2.ascending_node = 1.0;
+    e2.arg_periapsis = 2.0;
+    e2.mean_anomaly = 4.0;
+    const double m1 = 1e-3 * mass_scale, m2 = 3e-4 * mass_scale;
+    return system_from_helio("Lodestar", 1.0,
+                             {{"Anvil", Role::known, false, m1, elements_to_state(e1, gm_from_mass(1.0 + m1))},
+                              {"Bellows", Role::known, false, m2, elements_to_state(e2, gm_from_mass(1.0 + m2))}});
+}
+
+// Largest position difference (au) over bodies between two ephemerides at time t.
+double position_gap(const Ephemeris& a, const Ephemeris& b, double t) {
+    double worst = 0.0;
+    for (std::size_t i = 0; i < a.size(); ++i) worst = std::max(worst, (a.position(i, t) - b.position(i, t)).norm());
+    return worst;
+}
+
+}  // namespace
+
+TEST_CASE("universal-variable Kepler drift: one full period returns to the start, and matches the elements") {
+    const double mu = gm_from_mass(1.0);
+    for (double e : {0.0, 0.3, 0.9}) {
+        Elements el;
+        el.semi_major_axis = 3.0;
+        el.eccentricity = e;
+        el.inclination = 0.3;
+        el.mean_anomaly = 0.2;
+        const StateVector s0 = elements_to_state(el, mu);
+        const double period = orbital_period(el.semi_major_axis, mu);
+        // A quarter period against the Kepler-equation solution of elements.hpp (our own, tested against ERFA).
+        Vec3 x = s0.position, v = s0.velocity;
+        REQUIRE(kepler_drift(mu, 0.25 * period, x, v));
+        Elements quarter = el;
+        quarter.mean_anomaly += 0.5 * std::acos(-1.0);
+        const StateVector s1 = elements_to_state(quarter, mu);
+        CHECK((x - s1.position).norm() < 1e-12 * el.semi_major_axis);
+        // Drifting back returns to the start to rounding.
+        REQUIRE(kepler_drift(mu, -0.25 * period, x, v));
+        CHECK((x - s0.position).norm() < 1e-12 * el.semi_major_axis);
+        CHECK((v - s0.velocity).norm() < 1e-12 * s0.velocity.norm());
+    }
+    // A hyperbolic orbit: energy v^2/2 - mu/r is kept.
+    Vec3 x(1.0, 0.0, 0.0), v(0.0, 0.03, 0.001);
+    const double energy = 0.5 * v.squaredNorm() - mu / x.norm();
+    REQUIRE(energy > 0.0);
+    REQUIRE(kepler_drift(mu, 400.0, x, v));
+    CHECK(std::abs(0.5 * v.squaredNorm() - mu / x.norm() - energy) < 1e-12 * energy);
+}
+
+TEST_CASE("Wisdom-Holman map: convergence order with and without the corrector") {
+    // Near-Keplerian (planets a hundred times lighter than Jupiter), so that the eps h^k terms the corrector
+    // removes stand clear of the eps^2 h^2 terms it leaves.
+    const System sys = two_planets(0.01);
+    const double span = 3000.0;
+    IntegratorOptions ref_options;
+    ref_options.rel_tol = 1e-14;
+    const Ephemeris ref = integrate(sys, 0.0, span, ref_options).ephemeris;
+    const double period = shortest_period(sys);
+    for (int order : {0, 3, 5}) {
+        CAPTURE(order);
+        std::vector<double> errors;
+        std::vector<double> steps;
+        for (double fraction : {1.0 / 12.0, 1.0 / 24.0}) {
+            WisdomHolmanOptions o;
+            o.corrector_order = order;
+            o.step_days = span / std::round(span / (period * fraction));
+            const WisdomHolmanResult r = integrate_wisdom_holman(sys, 0.0, span, o);
+            REQUIRE(r.outcome == WisdomHolmanOutcome::ok);
+            errors.push_back(position_gap(r.ephemeris, ref, span));
+            steps.push_back(o.step_days);
+        }
+        const double observed = std::log(errors[0] / errors[1]) / std::log(steps[0] / steps[1]);
+        MESSAGE("corrector " << order << ": errors " << errors[0] << " " << errors[1] << " au, order " << observed);
+        // Order 2 without the corrector (Wisdom & Holman 1991); with it, O(eps h^4) for the two-stage and
+        // O(eps h^6) for the four-stage corrector (Wisdom, Holman & Touma 1996) while eps^2 h^2 is negligible.
+        if (order == 0) CHECK((observed > 1.8 && observed < 2.3));
+        if (order == 3) CHECK((observed > 3.6 && observed < 4.6));
+        if (order == 5) CHECK(observed > 5.5);
+    }
+}
+
