@@ -80,6 +80,51 @@ TEST_CASE("universal-variable Kepler drift: one full period returns to the start
     CHECK(std::abs(0.5 * v.squaredNorm() - mu / x.norm() - energy) < 1e-12 * energy);
 }
 
+TEST_CASE("Wisdom-Holman model agrees with the adaptive model on every bundled scenario to 1% of the smallest sigma") {
+    for (const char* name : {"quick", "tutorial", "default", "classic", "hard"}) {
+        CAPTURE(name);
+        const Scenario sc = load_scenario(testing::source_path(std::string("scenarios/") + name + ".toml"));
+        const auto m = testing::make_exercise(sc, 1, testing::no_noise());
+        ModelOptions ref_options, fast_options;
+        fast_options.integrator = "wisdom-holman";
+        const ModelSetup ref_setup = make_setup(m.ex.exercise, ref_options);
+        const ModelSetup fast_setup = make_setup(m.ex.exercise, fast_options);
+        double smallest_sigma = 1e300;
+        for (const FitObservation& f : ref_setup.obs) smallest_sigma = std::min({smallest_sigma, f.sigma_lon_arcsec, f.sigma_lat_arcsec});
+        ModelState state = initial_state(ref_setup);
+        // With and without a trial hidden body of ten Earth masses half as far again as the outermost planet.
+        for (bool hidden : {false, true}) {
+            CAPTURE(hidden);
+            if (hidden) {
+                double outer = 0.0;
+                for (const StateVector& p : state.planets) outer = std::max(outer, p.position.norm());
+                HiddenOrbit h;
+                h.mass = 3e-5;
+                h.semi_major_axis = 1.5 * outer;
+                h.k = 0.05;
+                h.mean_longitude = 1.0;
+                h.inclination = 0.03;
+                state.hidden = h;
+            }
+            const ModelRun ref = run_model(ref_setup, state, ref_setup.t_end);
+            const ModelRun fast = run_model(fast_setup, state, fast_setup.t_end);
+            REQUIRE(ref.ok);
+            REQUIRE(fast.ok);
+            double worst = 0.0;
+            for (const FitObservation& f : ref_setup.obs) {
+                std::vector<std::size_t> bodies = {ref.planet_index[f.planet]};
+                if (ref.hidden_index) bodies.push_back(*ref.hidden_index);
+                for (std::size_t b : bodies)
+                    worst = std::max(worst, separation(model_apparent(ref_setup, ref, b, f.time_days),
+                                                       model_apparent(fast_setup, fast, b, f.time_days)));
+            }
+            MESSAGE(std::string(name) << (hidden ? std::string(" with hidden") : std::string(" known")) << ": worst " << worst / arcsec * 1000.0 << " mas, sigma "
+                         << smallest_sigma << "\", nodes " << ref.outer.nodes() << " vs " << fast.outer.nodes());
+            CHECK(worst / arcsec < 0.01 * smallest_sigma);
+        }
+    }
+}
+
 TEST_CASE("Wisdom-Holman map: convergence order with and without the corrector") {
     // Near-Keplerian (planets a hundred times lighter than Jupiter), so that the eps h^k terms the corrector
     // removes stand clear of the eps^2 h^2 terms it leaves.
@@ -112,3 +157,57 @@ TEST_CASE("Wisdom-Holman map: convergence order with and without the corrector")
     }
 }
 
+TEST_CASE("Wisdom-Holman map: energy error bounded and without secular drift") {
+    // Jupiter- and Saturn-like masses, 200 orbits of the inner planet at the default step (1/96 of its period).
+    const System sys = two_planets(1.0);
+    const double span = 200.0 * shortest_period(sys);
+    const WisdomHolmanResult r = integrate_wisdom_holman(sys, 0.0, span);
+    REQUIRE(r.outcome == WisdomHolmanOutcome::ok);
+    const double e0 = total_energy(sys);
+    std::vector<double> t, de;
+    for (double time : r.ephemeris.times) {
+        t.push_back(time);
+        de.push_back((total_energy(r.ephemeris.system_at(time)) - e0) / std::abs(e0));
+    }
+    double worst = 0.0;
+    for (double d : de) worst = std::max(worst, std::abs(d));
+    // Least-squares slope of the relative energy error against time, times the span: the secular part.
+    const double n = static_cast<double>(t.size());
+    double st = 0, sd = 0, stt = 0, std_ = 0;
+    for (std::size_t k = 0; k < t.size(); ++k) {
+        st += t[k];
+        sd += de[k];
+        stt += t[k] * t[k];
+        std_ += t[k] * de[k];
+    }
+    const double slope = (n * std_ - st * sd) / (n * stt - st * st);
+    // Worst error in the last quarter against the first quarter: a drift would make the last grow.
+    double first = 0.0, last = 0.0;
+    for (std::size_t k = 0; k < t.size(); ++k) {
+        if (t[k] < 0.25 * span) first = std::max(first, std::abs(de[k]));
+        if (t[k] > 0.75 * span) last = std::max(last, std::abs(de[k]));
+    }
+    MESSAGE("relative energy error: worst " << worst << ", drift over the span " << slope * span << ", first quarter "
+                                            << first << ", last quarter " << last);
+    CHECK(worst < 1e-9);
+    CHECK(std::abs(slope * span) < 0.1 * worst);
+    CHECK(last < 2.0 * first);
+}
+
+TEST_CASE("Wisdom-Holman model: the same inputs give bit-identical ephemerides") {
+    const System sys = two_planets(1.0);
+    CentralQuadrupole q;
+    q.q = Eigen::Matrix3d::Identity() * 0.3;
+    q.gm_reduced = 1e-8;
+    WisdomHolmanOptions o;
+    o.central_quadrupole = q;
+    const WisdomHolmanResult a = integrate_wisdom_holman(sys, -2000.0, 9000.0, o);
+    const WisdomHolmanResult b = integrate_wisdom_holman(sys, -2000.0, 9000.0, o);
+    REQUIRE(a.outcome == WisdomHolmanOutcome::ok);
+    CHECK(a.ephemeris.times == b.ephemeris.times);
+    CHECK(a.ephemeris.states == b.ephemeris.states);
+    CHECK(a.ephemeris.accels == b.ephemeris.accels);
+    CHECK(a.ephemeris.jerks == b.ephemeris.jerks);
+    CHECK(a.ephemeris.t_begin() <= -2000.0);
+    CHECK(a.ephemeris.t_end() >= 9000.0);
+}
