@@ -71,6 +71,11 @@ TEST_CASE("universal-variable Kepler drift: one full period returns to the start
         REQUIRE(kepler_drift(mu, -0.25 * period, x, v));
         CHECK((x - s0.position).norm() < 1e-12 * el.semi_major_axis);
         CHECK((v - s0.velocity).norm() < 1e-12 * s0.velocity.norm());
+        // Seven and a quarter periods in one drift (far outside the short-step starting guess) lands on the
+        // same point.
+        Vec3 xl = s0.position, vl = s0.velocity;
+        REQUIRE(kepler_drift(mu, 7.25 * period, xl, vl));
+        CHECK((xl - s1.position).norm() < 1e-10 * el.semi_major_axis);
     }
     // A hyperbolic orbit: energy v^2/2 - mu/r is kept.
     Vec3 x(1.0, 0.0, 0.0), v(0.0, 0.03, 0.001);
