@@ -9,6 +9,7 @@
 #include "sim/base/units.hpp"
 #include "sim/model/model.hpp"
 #include "sim/model/wisdom_holman.hpp"
+#include "sim/solve/solve.hpp"
 #include "solve_helpers.hpp"
 #include "test_helpers.hpp"
 
@@ -216,3 +217,29 @@ TEST_CASE("Wisdom-Holman model: the same inputs give bit-identical ephemerides")
     CHECK(a.ephemeris.t_begin() <= -2000.0);
     CHECK(a.ephemeris.t_end() >= 9000.0);
 }
+
+TEST_SUITE("slow") {
+TEST_CASE("solutions with the Wisdom-Holman model agree with the adaptive model's to a tenth of their own sigma") {
+    // Every bundled scenario, seed 1, the noise `wayward new` draws; default solve options with each model.
+    for (const char* name : {"quick", "tutorial", "default", "classic", "hard"}) {
+        CAPTURE(name);
+        const Scenario sc = load_scenario(testing::source_path(std::string("scenarios/") + name + ".toml"));
+        const auto m = testing::make_exercise(sc, 1);
+        SolveOptions o;
+        o.threads = 2;
+        const Solution ref = solve(m.ex.exercise, o);
+        o.model.integrator = "wisdom-holman";
+        const Solution fast = solve(m.ex.exercise, o);
+        const Prediction& p = ref.prediction;
+        const double sep = separation({p.lon, p.lat}, {fast.prediction.lon, fast.prediction.lat}) / arcsec;
+        const double mass_shift = std::abs(fast.best.mass - ref.best.mass) / ref.mass_sigma;
+        const double distance_shift = std::abs(fast.best.semi_major_axis - ref.best.semi_major_axis) / ref.distance_sigma_au;
+        MESSAGE(std::string(name) << ": prediction moved " << sep << "\" (1-sigma minor axis " << p.semi_minor_arcsec
+                                  << "\"), mass by " << mass_shift << " sigma, distance by " << distance_shift
+                                  << " sigma; chi2 " << ref.chi2 << " vs " << fast.chi2);
+        CHECK(sep < 0.1 * p.semi_minor_arcsec);
+        CHECK(mass_shift < 0.1);
+        CHECK(distance_shift < 0.1);
+    }
+}
+}  // TEST_SUITE("slow")
