@@ -92,6 +92,7 @@ TEST_CASE("Wisdom-Holman model agrees with the adaptive model on every bundled s
         const Scenario sc = load_scenario(testing::source_path(std::string("scenarios/") + name + ".toml"));
         const auto m = testing::make_exercise(sc, 1, testing::no_noise());
         ModelOptions ref_options, fast_options;
+        ref_options.integrator = "adaptive";
         fast_options.integrator = "wisdom-holman";
         const ModelSetup ref_setup = make_setup(m.ex.exercise, ref_options);
         const ModelSetup fast_setup = make_setup(m.ex.exercise, fast_options);
@@ -227,6 +228,7 @@ TEST_CASE("solutions with the Wisdom-Holman model agree with the adaptive model'
         const auto m = testing::make_exercise(sc, 1);
         SolveOptions o;
         o.threads = 2;
+        o.model.integrator = "adaptive";
         const Solution ref = solve(m.ex.exercise, o);
         o.model.integrator = "wisdom-holman";
         const Solution fast = solve(m.ex.exercise, o);

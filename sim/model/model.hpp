@@ -2,7 +2,9 @@
 // For speed the fitting model treats the observer planet and its star as one inner pair: the outer bodies are
 // integrated about the pair's barycentre (with the pair's total mass and time-averaged quadrupole), and the
 // observer's heliocentric position is taken from the team's own ephemeris of its planet (observer.csv). A test
-// compares the model with the truth integrator. Units: days, radians inside; arcsec for residuals and sigma.
+// compares the model with the truth integrator. The outer bodies are integrated by the Wisdom-Holman map
+// (wisdom_holman.hpp) or, by name, by the adaptive Odeint reference (integrate.hpp); see model_integrators().
+// Units: days, radians inside; arcsec for residuals and sigma.
 #pragma once
 
 #include <array>
@@ -41,7 +43,7 @@ struct HiddenOrbit {
 struct ModelOptions {
     LightTime light_time = LightTime::corrected;
     double rel_tol = 1e-12;            // the adaptive integrator's tolerance
-    std::string integrator = "adaptive";  // a name from model_integrators()
+    std::string integrator = "wisdom-holman";  // a name from model_integrators(); "adaptive" is the reference
 };
 
 // The fitting model's integrators, selectable by name (ModelOptions::integrator).
