@@ -4,6 +4,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <stdexcept>
+#include <string>
 #include <vector>
 
 #include "sim/base/units.hpp"
@@ -217,6 +219,20 @@ TEST_CASE("Wisdom-Holman model: the same inputs give bit-identical ephemerides")
     CHECK(a.ephemeris.jerks == b.ephemeris.jerks);
     CHECK(a.ephemeris.t_begin() <= -2000.0);
     CHECK(a.ephemeris.t_end() >= 9000.0);
+}
+
+TEST_CASE("the fitting model's integrators are chosen by name from one table") {
+    std::vector<std::string> names;
+    for (const ModelIntegrator& m : model_integrators()) {
+        names.push_back(m.name);
+        CHECK(!m.description.empty());
+    }
+    CHECK(names == std::vector<std::string>{"adaptive", "wisdom-holman"});
+    CHECK(ModelOptions{}.integrator == "wisdom-holman");
+    const auto m = testing::make_exercise(load_scenario(testing::source_path("scenarios/quick.toml")), 1, testing::no_noise());
+    ModelOptions o;
+    o.integrator = "leapfrog";
+    CHECK_THROWS_AS(make_setup(m.ex.exercise, o), std::invalid_argument);
 }
 
 TEST_SUITE("slow") {
