@@ -344,16 +344,16 @@ TEST_CASE("the solver runs in a worker with progress, gives sim's solution, can 
     CHECK(matched >= 40);
     CHECK(worst < 1.0);  // arcsec: only the planets' small corrections differ
 
-    // A non-best minimum: its track is sim's predict_position for its orbit with the known-fit planets.
+    // A non-best minimum: its track is sim's predict_position for its own polished state (planets included).
     if (direct.minima.size() >= 2) {
         c.selected_minimum = 1;
         REQUIRE(a.wait_idle(m, c));
         REQUIRE(a.minimum_view);
         CHECK(a.minimum_view->minimum == 1);
         CHECK_FALSE(a.minimum_view->exact);
-        ModelState state = a.fit->state;
-        state.hidden = direct.minima[1].orbit;
-        const Prediction p = predict_position(a.fit->setup, state, direct.prediction.epoch_year, 60.0, 0.25);
+        REQUIRE(direct.setup);
+        const ModelState state = direct.fit.state(*direct.setup, direct.minima[1].parameters);
+        const Prediction p = predict_position(*direct.setup, state, direct.prediction.epoch_year, 60.0, 0.25);
         CHECK(a.minimum_view->prediction.lon == p.lon);
         CHECK(a.minimum_view->prediction.lat == p.lat);
         CHECK(shown_prediction(m, c, &exact) == &a.minimum_view->prediction);

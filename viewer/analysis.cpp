@@ -305,10 +305,16 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
             v.solution_id = id;
             v.minimum = k;
             v.exact = k == 0;
-            // The solver keeps each minimum's hidden orbit but not its corrections to the planets: those are
-            // taken at their known-fit states here (for the best minimum the prediction is the solver's own).
+            // A solve run here keeps each minimum's whole parameter vector (its own corrections to the planets);
+            // a solution read from a file keeps only the hidden orbits, drawn with the known fit's planets.
+            const bool whole = s->setup && s->minima[k].parameters.size() > 0;
+            const ModelSetup& setup = whole ? *s->setup : f->setup;
             ModelState state = f->state;
-            state.hidden = k == 0 ? s->best : s->minima[k].orbit;
+            if (whole) {
+                state = s->fit.state(setup, s->minima[k].parameters);
+            } else {
+                state.hidden = k == 0 ? s->best : s->minima[k].orbit;
+            }
             const Prediction& best = s->prediction;
             if (k == 0) {
                 v.prediction = best;
@@ -316,10 +322,10 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
                 const double track_years = best.track.empty() ? 60.0 : std::max(best.epoch_year - best.track.front().year,
                                                                                best.track.back().year - best.epoch_year);
                 const double step = best.track.size() >= 2 ? best.track[1].year - best.track[0].year : 0.25;
-                v.prediction = predict_position(f->setup, state, best.epoch_year, track_years, step);
+                v.prediction = predict_position(setup, state, best.epoch_year, track_years, step);
             }
-            v.fine_track = predict_position(f->setup, state, best.epoch_year, 10.0, 0.01).track;
-            const ModelRun run = run_model(f->setup, state, span_end, 0.0);
+            v.fine_track = predict_position(setup, state, best.epoch_year, 10.0, 0.01).track;
+            const ModelRun run = run_model(setup, state, span_end, 0.0);
             v.xyz.assign(times.size() * 3, std::numeric_limits<float>::quiet_NaN());
             if (run.ok && run.hidden_index)
                 for (std::size_t i = 0; i < times.size(); ++i) {

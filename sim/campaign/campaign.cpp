@@ -418,193 +418,6 @@ std::vector<CaseRow> read_case_rows(const std::string& path) {
     return out;
 }
 
-// ------------------------------------------------------------------------------------------------ predictions
-
-namespace {
-
-
-}  // namespace
-
-std::vector<Prediction> predict_at_epochs(const Exercise& ex, const Solution& sol, const SolveOptions& o,
-                                          const std::vector<double>& epochs_year, double* data_centre_year) {
-    if (epochs_year.empty()) return {};
-    const Brief& b = ex.brief;
-    for (double y : epochs_year)
-        if (!(y >= b.epoch0_year && y <= b.epoch0_year + b.span_years))
-            throw InputError("", 0, "epoch", "the epoch " + fmt("%g", y) + " lies outside the exercise's span");
-    const KnownFit known = fit_known(ex, o.model);
-    const ModelSetup& setup = known.setup;
-    // The reference time of the fitted mean longitude, as solve takes it: the sigma-weighted mean observation time.
-    double sum = 0.0, weight = 0.0;
-    for (const FitObservation& f : setup.obs) {
-        if (f.rejected) continue;
-        const double w = 1.0 / (f.sigma_lon_arcsec * f.sigma_lon_arcsec);
-        sum += w * f.time_days;
-        weight += w;
-    }
-    const double t_ref = weight > 0 ? sum / weight : 0.0;
-    if (data_centre_year) *data_centre_year = decimal_year(b.epoch0_year, t_ref);
-    const double gm_star = setup.known.gm[0];
-
-    // The hidden-body parameters in the solution's covariance, in solve's parametrisation and finite-difference steps.
-    const std::vector<std::string>& names = sol.parameter_names;
-    const auto n = static_cast<Eigen::Index>(names.size());
-    if (sol.hidden_covariance.rows() != n || sol.hidden_covariance.cols() != n)
-        throw std::runtime_error("predict_at_epochs: the solution's covariance does not match its parameter names");
-    const HiddenOrbit& best = sol.best;
-    Eigen::VectorXd theta(n), steps(n);
-    for (Eigen::Index j = 0; j < n; ++j) {
-        const std::string& p = names[static_cast<std::size_t>(j)];
-        steps[j] = 1e-3;
-        if (p == "log_mass") { theta[j] = std::log(best.mass); steps[j] = 0.01; }
-        else if (p == "log_a") theta[j] = std::log(best.semi_major_axis);
-        else if (p == "e_cos_varpi") theta[j] = best.k;
-        else if (p == "e_sin_varpi") theta[j] = best.h;
-        else if (p == "mean_longitude_rad")
-            theta[j] = best.mean_longitude + mean_motion(best.semi_major_axis, gm_star + gm_from_mass(best.mass)) * t_ref;
-        else if (p == "tilt_x_rad") theta[j] = best.inclination * std::cos(best.node);
-        else if (p == "tilt_y_rad") theta[j] = best.inclination * std::sin(best.node);
-        else throw std::runtime_error("predict_at_epochs: unknown parameter " + p);
-    }
-    auto hidden_of = [&](const Eigen::VectorXd& x) {
-        HiddenOrbit h = best;
-        double lon_ref = NAN, ix = NAN, iy = NAN;
-        for (Eigen::Index j = 0; j < n; ++j) {
-            const std::string& p = names[static_cast<std::size_t>(j)];
-            if (p == "log_mass") h.mass = std::exp(x[j]);
-            else if (p == "log_a") h.semi_major_axis = std::exp(x[j]);
-            else if (p == "e_cos_varpi") h.k = x[j];
-            else if (p == "e_sin_varpi") h.h = x[j];
-            else if (p == "mean_longitude_rad") lon_ref = x[j];
-            else if (p == "tilt_x_rad") ix = x[j];
-            else if (p == "tilt_y_rad") iy = x[j];
-        }
-        if (std::isfinite(lon_ref)) h.mean_longitude = lon_ref - mean_motion(h.semi_major_axis, gm_star + gm_from_mass(h.mass)) * t_ref;
-        if (std::isfinite(ix) && std::isfinite(iy)) {
-            h.inclination = std::hypot(ix, iy);
-            h.node = std::atan2(iy, ix);
-        }
-        return h;
-    };
-    // The observed planets: the known-bodies fit, corrected for the solved hidden body by two Gauss-Newton steps
-    // with the known fit's Jacobian (as solve corrects them for each trial orbit before its final polish).
-    ModelState planets = known.state;
-    {
-        const ModelState reference = initial_state(setup);
-        Eigen::VectorXd xp = pack_planets(setup, reference, known.state);
-        const Eigen::ColPivHouseholderQR<Eigen::MatrixXd> qr(known.jacobian);
-        for (int step = 0; step < 2; ++step) {
-            ModelState s = planets;
-            s.hidden = hidden_of(theta);
-            Eigen::VectorXd r;
-            if (!weighted_residuals(setup, run_model(setup, s, setup.t_end), r)) break;
-            xp += qr.solve(Eigen::VectorXd(-r));
-            unpack_planets(setup, reference, xp, planets);
-        }
-    }
-    auto state_of = [&](const Eigen::VectorXd& x) {
-        ModelState s = planets;
-        s.hidden = hidden_of(x);
-        return s;
-    };
-
-    const double span_end = b.span_years * julian_year_days;
-    std::vector<double> t_epoch;
-    double t_last = 0.0, t_track = 0.0;
-    for (double y : epochs_year) {
-        const double t = days_from_year(b.epoch0_year, y);
-        t_epoch.push_back(t);
-        t_last = std::max(t_last, t);
-        t_track = std::max(t_track, std::max(t, std::min(span_end, t + o.track_years * julian_year_days)));
-    }
-    // The best fit: position, distance and track at every epoch (as predict_position computes them).
-    const ModelRun run = run_model(setup, state_of(theta), t_track);
-    if (!run.ok || !run.hidden_index) throw std::runtime_error("prediction: the model could not be integrated: " + run.problem);
-    std::vector<Prediction> out(epochs_year.size());
-    const double step = o.track_step_years * julian_year_days;
-    for (std::size_t e = 0; e < out.size(); ++e) {
-        Prediction& p = out[e];
-        p.epoch_year = epochs_year[e];
-        const double t = t_epoch[e];
-        const SkyPosition sky = model_apparent(setup, run, *run.hidden_index, t);
-        p.lon = sky.lon;
-        p.lat = sky.lat;
-        p.distance_au = sky.distance;
-        const double lo = std::max(0.0, t - o.track_years * julian_year_days);
-        const double hi = std::min(span_end, t + o.track_years * julian_year_days);
-        for (double tt = lo; tt <= hi + 1e-9; tt += step) {
-            const SkyPosition s = model_apparent(setup, run, *run.hidden_index, tt);
-            p.track.push_back({decimal_year(b.epoch0_year, tt), s.lon, s.lat});
-        }
-    }
-    // Offsets (arcsec, in lambda cos beta and beta) of a parameter vector's sky positions from the best fit.
-    auto offsets_of = [&](const Eigen::VectorXd& x, std::vector<std::array<double, 2>>& d) {
-        d.assign(out.size(), {NAN, NAN});
-        const ModelRun r = run_model(setup, state_of(x), t_last);
-        if (!r.ok || !r.hidden_index) return false;
-        for (std::size_t e = 0; e < out.size(); ++e) {
-            const SkyPosition s = model_apparent(setup, r, *r.hidden_index, t_epoch[e]);
-            d[e] = {wrap_pi(s.lon - out[e].lon) * std::cos(out[e].lat) / arcsec, (s.lat - out[e].lat) / arcsec};
-        }
-        return true;
-    };
-    // Linear propagation of the hidden-body covariance.
-    const Eigen::MatrixXd& C = sol.hidden_covariance;
-    std::vector<Eigen::MatrixXd> G(out.size(), Eigen::MatrixXd::Zero(2, n));
-    for (Eigen::Index j = 0; j < n; ++j) {
-        Eigen::VectorXd xp = theta;
-        xp[j] += steps[j];
-        std::vector<std::array<double, 2>> d;
-        if (!offsets_of(xp, d)) continue;
-        for (std::size_t e = 0; e < out.size(); ++e) {
-            G[e](0, j) = d[e][0] / steps[j];
-            G[e](1, j) = d[e][1] / steps[j];
-        }
-    }
-    for (std::size_t e = 0; e < out.size(); ++e) {
-        const Eigen::Matrix2d cov = G[e] * C * G[e].transpose();
-        Prediction& p = out[e];
-        p.cov_ll = cov(0, 0);
-        p.cov_lb = cov(0, 1);
-        p.cov_bb = cov(1, 1);
-        ellipse_axes(p.cov_ll, p.cov_lb, p.cov_bb, p.semi_major_arcsec, p.semi_minor_arcsec, p.orientation_deg);
-    }
-    // Samples of the covariance, each integrated once and read at every epoch.
-    if (o.samples > 0) {
-        Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(C);
-        const Eigen::MatrixXd L = es.eigenvectors() * es.eigenvalues().cwiseMax(0.0).cwiseSqrt().asDiagonal();
-        Rng rng = make_rng(o.seed, "epoch-samples");
-        std::vector<Eigen::VectorXd> xs;
-        for (int k = 0; k < o.samples; ++k) {
-            Eigen::VectorXd z(n);
-            for (Eigen::Index j = 0; j < n; ++j) z[j] = normal(rng);
-            xs.push_back(theta + L * z);
-        }
-        std::vector<std::vector<std::array<double, 2>>> d(xs.size());
-        parallel_for(xs.size(), o.threads ? o.threads : 1, [&](std::size_t k) { offsets_of(xs[k], d[k]); });
-        for (std::size_t e = 0; e < out.size(); ++e) {
-            std::vector<double> radii;
-            double sll = 0, slb = 0, sbb = 0;
-            for (const auto& dk : d) {
-                const auto& v = dk[e];
-                if (!std::isfinite(v[0]) || !std::isfinite(v[1])) continue;
-                radii.push_back(std::hypot(v[0], v[1]));
-                sll += v[0] * v[0]; slb += v[0] * v[1]; sbb += v[1] * v[1];
-            }
-            Prediction& p = out[e];
-            p.samples_used = static_cast<int>(radii.size());
-            if (radii.empty()) continue;
-            std::sort(radii.begin(), radii.end());
-            // The same order statistic as solve: the ceil(0.9 n)-th smallest radius.
-            p.radius90_arcsec = radii[std::min(radii.size() - 1, static_cast<std::size_t>(std::ceil(0.9 * static_cast<double>(radii.size()))) - 1)];
-            const double m = static_cast<double>(radii.size());
-            double unused = 0.0;
-            ellipse_axes(sll / m, slb / m, sbb / m, p.sampled_semi_major_arcsec, p.sampled_semi_minor_arcsec, unused);
-        }
-    }
-    return out;
-}
-
 // ------------------------------------------------------------------------------------------------ manifest
 
 namespace {
@@ -857,14 +670,16 @@ std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, 
         o.seed = derive_seed(data.seed, "campaign-samples:" + st.name);
         o.epoch_year = cs.epochs_year.front();
         SolveOptions fit = o;
-        fit.samples = 0;  // the samples are drawn once for every epoch by predict_at_epochs
+        fit.samples = 0;  // the samples are drawn once, for every epoch, by the predictor below
         SolveProgress sp;
         sp.cancel = cancel;
         try {
             const Solution sol = solve(ex, fit, sp);
             if (cancelled()) return {};
-            double centre = NAN;
-            const std::vector<Prediction> preds = predict_at_epochs(ex, sol, o, cs.epochs_year, &centre);
+            PredictHooks hooks;
+            hooks.cancel = cancel;
+            const std::vector<Prediction> preds = predict(*sol.setup, sol.fit, cs.epochs_year, prediction_options(o), hooks);
+            const double centre = decimal_year(ex.brief.epoch0_year, sol.fit.layout.t_ref);
             for (std::size_t e = 0; e < rows.size(); ++e) {
                 if (cancelled()) return {};
                 const Score s = score_prediction(ex.brief, data.ex->key, preds[e], spec.window_years);

@@ -3,7 +3,7 @@
 // A campaign spec (TOML) names scenarios, a number of seeds, a campaign seed, named solve settings and search
 // epochs. One case = (scenario, seed, settings, epoch). Work is shared: each system (scenario, seed) is generated
 // and observed once, each unit (scenario, seed, settings) is solved once, and the unit's solution is predicted at
-// every epoch from one set of model runs (predict_at_epochs). Each finished unit appends its rows to DIR/cases.csv
+// every epoch from one set of model runs (the predictor, sim/predict). Each finished unit appends its rows to DIR/cases.csv
 // with a single write() call, so a killed run leaves only whole rows and resumes where it stopped; a manifest
 // (DIR/manifest.toml) names the campaign (SHA-256 of the spec and its scenario files) and the shard. Sharding
 // splits the units, `merge` joins the shards. The report: summary.txt and PNG plots (success rate against epoch
@@ -115,15 +115,6 @@ std::string format_case_row(const CaseRow& row);  // one line with its newline
 CaseRow parse_case_row(const std::string& line, const std::string& file, long line_number);
 // Reads a whole cases.csv (header checked); rows in file order.
 std::vector<CaseRow> read_case_rows(const std::string& path);
-
-// Predictions of a solved hidden body at several epochs from one set of model runs: the best fit integrated once
-// (position and +- track_years track at every epoch), the hidden-body covariance propagated linearly by finite
-// differences (the same steps as solve), and options.samples draws from that covariance, each integrated once and
-// read at every epoch (the radius holding 90% of them, and their ellipse). The observed planets are those of the
-// known-bodies fit corrected for the solved hidden body by two Gauss-Newton steps (test_campaign compares the
-// result with solve's own prediction). data_centre_year receives the sigma-weighted mean observation time.
-std::vector<Prediction> predict_at_epochs(const Exercise& ex, const Solution& sol, const SolveOptions& options,
-                                          const std::vector<double>& epochs_year, double* data_centre_year = nullptr);
 
 struct CampaignRun {
     std::string out_dir;
