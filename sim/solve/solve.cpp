@@ -16,19 +16,6 @@
 
 namespace wayward {
 
-std::string SolveOptions::describe() const {
-    std::ostringstream s;
-    switch (distance) {
-        case DistancePrior::free: s << "distance free"; break;
-        case DistancePrior::fixed: s << "distance fixed at " << distance_au << " au"; break;
-        case DistancePrior::gaussian: s << "distance " << distance_au << " +- " << distance_sigma_au << " au"; break;
-        case DistancePrior::spacing: s << "distance from the spacing rule (+- " << spacing_sigma_fraction * 100 << "%)"; break;
-    }
-    s << (circular ? ", circular orbit" : ", eccentric orbit (prior sigma " + std::to_string(eccentricity_prior_sigma).substr(0, 5) + " on e)")
-      << (coplanar ? ", coplanar" : ", inclined (prior sigma " + std::to_string(inclination_prior_rad / deg).substr(0, 4) + " deg on the tilt)");
-    return s.str();
-}
-
 double spacing_rule_next(const Brief& brief) {
     std::vector<double> a;
     for (const BriefPlanet& p : brief.planets) a.push_back(p.elements.semi_major_axis);
@@ -107,7 +94,7 @@ Eigen::MatrixXd normal_inverse(const Eigen::MatrixXd& J) {
 void check_epoch(const Exercise& ex, double year) {
     const double lo = ex.brief.epoch0_year, hi = ex.brief.epoch0_year + ex.brief.span_years;
     if (!(year >= lo && year <= hi))
-        throw InputError("", 0, "--epoch", "the epoch " + std::to_string(year) + " lies outside the exercise's integrable span (" +
+        throw InputError("", 0, "epoch_year", "the epoch " + std::to_string(year) + " lies outside the exercise's integrable span (" +
                                              std::to_string(lo) + " to " + std::to_string(hi) + ")");
 }
 
@@ -388,9 +375,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     const unsigned threads = o.threads ? o.threads : default_threads();
     const double epoch_year = o.epoch_year.value_or(ex.brief.search_epochs_year.front());
     check_epoch(ex, epoch_year);
-    if (o.distance == DistancePrior::fixed && !(o.distance_au > 0.0)) throw InputError("", 0, "--distance", "a fixed distance must be positive");
-    if (o.distance == DistancePrior::gaussian && !(o.distance_au > 0.0 && o.distance_sigma_au > 0.0))
-        throw InputError("", 0, "--distance", "a Gaussian distance prior needs a positive mean and sigma");
+    validate(o);
 
     report("known-bodies fit", 0.0);
     auto known = std::make_shared<KnownFit>(fit_known(ex, o.model));
