@@ -334,7 +334,7 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
             v.fine_track = predict_position(setup, state, best.epoch_year, 10.0, 0.01).track;
             const ModelRun run = run_model(setup, state, span_end, 0.0);
             v.xyz.assign(times.size() * 3, std::numeric_limits<float>::quiet_NaN());
-            if (run.ok && run.hidden_index)
+            if (run.ok() && run.hidden_index)
                 for (std::size_t i = 0; i < times.size(); ++i) {
                     if (!run.outer.covers(times[i])) continue;
                     const Vec3 p = run.outer.position(*run.hidden_index, times[i]);

@@ -24,4 +24,11 @@ private:
     std::string message_;
 };
 
+// A long computation stopped because its caller asked it to (a cancel flag): not an error of the input or the
+// computation. Stages throw it once, at the top of the stage; inner loops return an outcome instead.
+class Cancelled : public std::runtime_error {
+public:
+    Cancelled() : std::runtime_error("cancelled") {}
+};
+
 }  // namespace wayward

@@ -67,9 +67,8 @@ bool has_two_known(const Scenario& sc) {
 
 CampaignSpec load_campaign_spec(const std::string& path) {
     const std::string text = detail::read_text_file(path);
-    std::string base = fs::path(path).parent_path().string();
-    if (base.empty()) base = ".";
-    return parse_campaign_spec(text, path, base);
+    const fs::path parent = fs::path(path).parent_path();
+    return parse_campaign_spec(text, path, parent.empty() ? std::string(".") : parent.string());
 }
 
 namespace {

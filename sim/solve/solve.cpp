@@ -273,7 +273,12 @@ std::vector<LeastSquaresResult> fit_starts(const KnownFit& known, const Problem&
         theta0[prob.layout().i_lon - n_planet] = g.longitude_of(c);
         LeastSquaresResult r = levenberg_marquardt(reduced, theta0, 40, cancelled);
         Eigen::VectorXd x;
-        if (r.evaluations > 0 && with_planets(r.x, x)) r.x = x; else r.evaluations = 0;
+        if (r.evaluated && with_planets(r.x, x)) {
+            r.x = x;
+        } else {
+            r.evaluated = false;
+            r.outcome = FitOutcome::model_failed;
+        }
         fits[s] = r;
         if (progress.report)
             progress.report("fitting from " + std::to_string(order.size()) + " starts",
@@ -298,11 +303,12 @@ LeastSquaresResult polish(ModelSetup& setup, const Problem& prob, const Eigen::V
 std::vector<Minimum> collect_minima(const Problem& prob, const Grid& g, const std::vector<std::size_t>& order,
                                     std::vector<LeastSquaresResult>& fits, std::size_t best_start, const LeastSquaresResult& best) {
     for (std::size_t s = 0; s < fits.size(); ++s) {
-        if (fits[s].evaluations == 0) continue;
+        if (!fits[s].evaluated) continue;
         if (s == best_start) {
+            const bool converged = best.converged() || fits[s].converged();
             fits[s].x = best.x;
             fits[s].chi2 = best.chi2;
-            fits[s].converged = best.converged || fits[s].converged;
+            fits[s].outcome = converged ? FitOutcome::converged : best.outcome;
             continue;
         }
         Eigen::VectorXd r;
@@ -310,12 +316,12 @@ std::vector<Minimum> collect_minima(const Problem& prob, const Grid& g, const st
     }
     std::vector<Minimum> minima;
     for (std::size_t s = 0; s < fits.size(); ++s) {
-        if (fits[s].evaluations == 0 || !std::isfinite(fits[s].chi2)) continue;
+        if (!fits[s].evaluated || !std::isfinite(fits[s].chi2)) continue;
         Minimum m;
         m.orbit = prob.hidden(fits[s].x);
         m.parameters = fits[s].x;
         m.chi2 = fits[s].chi2;
-        m.converged = fits[s].converged;
+        m.converged = fits[s].converged();
         m.iterations = fits[s].iterations;
         m.start_distance_au = g.a_of(order[s]);
         m.start_longitude = g.longitude_of(order[s]);
@@ -391,13 +397,13 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     prob.runs = &runs;
 
     const Grid grid = screen_grid(*known, prob, ex.brief, o, threads, progress);
-    if (cancelled()) throw std::runtime_error("cancelled");
+    if (cancelled()) throw Cancelled();
     const std::vector<std::size_t> order = grid_minima(grid, o.starts);
     std::vector<LeastSquaresResult> fits = fit_starts(*known, prob, grid, order, threads, progress);
-    if (cancelled()) throw std::runtime_error("cancelled");
+    if (cancelled()) throw Cancelled();
     std::size_t best_start = fits.size();
     for (std::size_t s = 0; s < fits.size(); ++s)
-        if (fits[s].evaluations > 0 && std::isfinite(fits[s].chi2) && (best_start == fits.size() || fits[s].chi2 < fits[best_start].chi2))
+        if (fits[s].evaluated && std::isfinite(fits[s].chi2) && (best_start == fits.size() || fits[s].chi2 < fits[best_start].chi2))
             best_start = s;
     if (best_start == fits.size()) throw std::runtime_error("no fit from any start could be evaluated");
 
