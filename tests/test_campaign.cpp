@@ -112,6 +112,15 @@ TEST_CASE("campaign spec: bad input names file, line and field") {
     write(spec, "[campaign]\nname = \"t\"\nseeds = 1\n");
     CHECK(refusal_of(spec).field == "campaign.seed");
 
+    // A count of cases no machine could finish (1e6 seeds x 1 settings x 1000 epochs = 1e9) is refused up front.
+    std::string many = "offsets_years = [";
+    for (int k = 0; k < 1000; ++k) many += (k ? ", " : "") + std::to_string(-k * 0.05);
+    many += "]";
+    write(spec, spec_text(quick, "1000000", many));
+    r = refusal_of(spec);
+    CHECK(r.field == "campaign.seeds");
+    CHECK(r.message.find("at most 10000000") != std::string::npos);
+
     // A broken scenario is named by its own file.
     const fs::path broken = dir / "broken.toml";
     write(broken, "[scenario]\nname = \"x\"\nspan_years = -3\n");
@@ -151,6 +160,21 @@ TEST_CASE("campaign CLI: bad input exits 2 with a clear message before any work,
     CHECK(r.status == 2);
     CHECK(r.output.find("field '--out'") != std::string::npos);
     CHECK(r.output.find("cannot create the folder") != std::string::npos);
+
+    // Links planted at the lock's or the table's name are refused, and what they point to is left alone.
+    const fs::path victim = dir / "victim.txt";
+    write(victim, "keep me\n");
+    write(spec, spec_text(quick));
+    for (const char* name : {".lock", "cases.csv"}) {
+        const fs::path planted = dir / (std::string("planted-") + (name[0] == '.' ? "lock" : "cases"));
+        fs::create_directories(planted);
+        fs::create_symlink(victim, planted / name);
+        r = testing::run_cli("campaign " + spec.string() + " --out " + planted.string() + " --quiet");
+        INFO(name, ": ", r.output);
+        CHECK(r.status != 0);
+        CHECK(testing::read(victim) == "keep me\n");
+        CHECK(fs::is_symlink(planted / name));
+    }
 
     r = testing::run_cli("merge " + (dir / "nowhere").string() + " --out " + out.string());
     CHECK(r.status == 2);

@@ -121,7 +121,7 @@ void fill_positions(const ModelSetup& setup, const ModelRun& run, const std::vec
 
 ModelRun run_best(const ModelSetup& setup, const ModelState& state, double t_end) {
     ModelRun run = run_model(setup, state, t_end);
-    if (!run.ok || !run.hidden_index) throw std::runtime_error("prediction: the model could not be integrated: " + run.problem);
+    if (!run.ok() || !run.hidden_index) throw std::runtime_error("prediction: the model could not be integrated: " + run.problem());
     return run;
 }
 
@@ -131,7 +131,7 @@ bool offsets_of(const ModelSetup& setup, const FittedModel& fit, const Eigen::Ve
     if (hooks.runs) ++*hooks.runs;
     d.assign(at.size(), {NAN, NAN});
     const ModelRun r = run_model(setup, fit.state(setup, x), e.t_last);
-    if (!r.ok || !r.hidden_index) return false;
+    if (!r.ok() || !r.hidden_index) return false;
     for (std::size_t k = 0; k < at.size(); ++k) {
         const SkyPosition s = model_apparent(setup, r, *r.hidden_index, e.t[k]);
         d[k] = {wrap_pi(s.lon - at[k].lon) * std::cos(at[k].lat) / arcsec, (s.lat - at[k].lat) / arcsec};
@@ -208,7 +208,7 @@ void sample_covariance(const ModelSetup& setup, const FittedModel& fit, const Ep
         if (hooks.report)
             hooks.report("sampling the covariance", 0.2 + 0.8 * static_cast<double>(++sampled) / static_cast<double>(xs.size()));
     });
-    if (cancelled(hooks)) throw std::runtime_error("cancelled");
+    if (cancelled(hooks)) throw Cancelled();
     for (std::size_t k = 0; k < out.size(); ++k) summarise_samples(d, k, out[k]);
 }
 

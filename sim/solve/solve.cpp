@@ -16,19 +16,6 @@
 
 namespace wayward {
 
-std::string SolveOptions::describe() const {
-    std::ostringstream s;
-    switch (distance) {
-        case DistancePrior::free: s << "distance free"; break;
-        case DistancePrior::fixed: s << "distance fixed at " << distance_au << " au"; break;
-        case DistancePrior::gaussian: s << "distance " << distance_au << " +- " << distance_sigma_au << " au"; break;
-        case DistancePrior::spacing: s << "distance from the spacing rule (+- " << spacing_sigma_fraction * 100 << "%)"; break;
-    }
-    s << (circular ? ", circular orbit" : ", eccentric orbit (prior sigma " + std::to_string(eccentricity_prior_sigma).substr(0, 5) + " on e)")
-      << (coplanar ? ", coplanar" : ", inclined (prior sigma " + std::to_string(inclination_prior_rad / deg).substr(0, 4) + " deg on the tilt)");
-    return s.str();
-}
-
 double spacing_rule_next(const Brief& brief) {
     std::vector<double> a;
     for (const BriefPlanet& p : brief.planets) a.push_back(p.elements.semi_major_axis);
@@ -107,7 +94,7 @@ Eigen::MatrixXd normal_inverse(const Eigen::MatrixXd& J) {
 void check_epoch(const Exercise& ex, double year) {
     const double lo = ex.brief.epoch0_year, hi = ex.brief.epoch0_year + ex.brief.span_years;
     if (!(year >= lo && year <= hi))
-        throw InputError("", 0, "--epoch", "the epoch " + std::to_string(year) + " lies outside the exercise's integrable span (" +
+        throw InputError("", 0, "epoch_year", "the epoch " + std::to_string(year) + " lies outside the exercise's integrable span (" +
                                              std::to_string(lo) + " to " + std::to_string(hi) + ")");
 }
 
@@ -286,7 +273,12 @@ std::vector<LeastSquaresResult> fit_starts(const KnownFit& known, const Problem&
         theta0[prob.layout().i_lon - n_planet] = g.longitude_of(c);
         LeastSquaresResult r = levenberg_marquardt(reduced, theta0, 40, cancelled);
         Eigen::VectorXd x;
-        if (r.evaluations > 0 && with_planets(r.x, x)) r.x = x; else r.evaluations = 0;
+        if (r.evaluated && with_planets(r.x, x)) {
+            r.x = x;
+        } else {
+            r.evaluated = false;
+            r.outcome = FitOutcome::model_failed;
+        }
         fits[s] = r;
         if (progress.report)
             progress.report("fitting from " + std::to_string(order.size()) + " starts",
@@ -311,11 +303,12 @@ LeastSquaresResult polish(ModelSetup& setup, const Problem& prob, const Eigen::V
 std::vector<Minimum> collect_minima(const Problem& prob, const Grid& g, const std::vector<std::size_t>& order,
                                     std::vector<LeastSquaresResult>& fits, std::size_t best_start, const LeastSquaresResult& best) {
     for (std::size_t s = 0; s < fits.size(); ++s) {
-        if (fits[s].evaluations == 0) continue;
+        if (!fits[s].evaluated) continue;
         if (s == best_start) {
+            const bool converged = best.converged() || fits[s].converged();
             fits[s].x = best.x;
             fits[s].chi2 = best.chi2;
-            fits[s].converged = best.converged || fits[s].converged;
+            fits[s].outcome = converged ? FitOutcome::converged : best.outcome;
             continue;
         }
         Eigen::VectorXd r;
@@ -323,12 +316,12 @@ std::vector<Minimum> collect_minima(const Problem& prob, const Grid& g, const st
     }
     std::vector<Minimum> minima;
     for (std::size_t s = 0; s < fits.size(); ++s) {
-        if (fits[s].evaluations == 0 || !std::isfinite(fits[s].chi2)) continue;
+        if (!fits[s].evaluated || !std::isfinite(fits[s].chi2)) continue;
         Minimum m;
         m.orbit = prob.hidden(fits[s].x);
         m.parameters = fits[s].x;
         m.chi2 = fits[s].chi2;
-        m.converged = fits[s].converged;
+        m.converged = fits[s].converged();
         m.iterations = fits[s].iterations;
         m.start_distance_au = g.a_of(order[s]);
         m.start_longitude = g.longitude_of(order[s]);
@@ -388,9 +381,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     const unsigned threads = o.threads ? o.threads : default_threads();
     const double epoch_year = o.epoch_year.value_or(ex.brief.search_epochs_year.front());
     check_epoch(ex, epoch_year);
-    if (o.distance == DistancePrior::fixed && !(o.distance_au > 0.0)) throw InputError("", 0, "--distance", "a fixed distance must be positive");
-    if (o.distance == DistancePrior::gaussian && !(o.distance_au > 0.0 && o.distance_sigma_au > 0.0))
-        throw InputError("", 0, "--distance", "a Gaussian distance prior needs a positive mean and sigma");
+    validate(o);
 
     report("known-bodies fit", 0.0);
     auto known = std::make_shared<KnownFit>(fit_known(ex, o.model));
@@ -406,13 +397,13 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     prob.runs = &runs;
 
     const Grid grid = screen_grid(*known, prob, ex.brief, o, threads, progress);
-    if (cancelled()) throw std::runtime_error("cancelled");
+    if (cancelled()) throw Cancelled();
     const std::vector<std::size_t> order = grid_minima(grid, o.starts);
     std::vector<LeastSquaresResult> fits = fit_starts(*known, prob, grid, order, threads, progress);
-    if (cancelled()) throw std::runtime_error("cancelled");
+    if (cancelled()) throw Cancelled();
     std::size_t best_start = fits.size();
     for (std::size_t s = 0; s < fits.size(); ++s)
-        if (fits[s].evaluations > 0 && std::isfinite(fits[s].chi2) && (best_start == fits.size() || fits[s].chi2 < fits[best_start].chi2))
+        if (fits[s].evaluated && std::isfinite(fits[s].chi2) && (best_start == fits.size() || fits[s].chi2 < fits[best_start].chi2))
             best_start = s;
     if (best_start == fits.size()) throw std::runtime_error("no fit from any start could be evaluated");
 

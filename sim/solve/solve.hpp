@@ -23,32 +23,9 @@
 
 #include "sim/fit/known_fit.hpp"
 #include "sim/predict/predict.hpp"
+#include "sim/solve/solve_options.hpp"
 
 namespace wayward {
-
-enum class DistancePrior { free, fixed, gaussian, spacing };
-
-struct SolveOptions {
-    DistancePrior distance = DistancePrior::free;
-    double distance_au = 0.0;              // fixed or Gaussian mean
-    double distance_sigma_au = 0.0;        // Gaussian sigma
-    double spacing_sigma_fraction = 0.1;   // spacing-rule prior: sigma as a fraction of the rule's distance
-    bool circular = false;
-    bool coplanar = false;                 // true: the orbit lies in the observer's plane
-    double eccentricity_prior_sigma = 0.1; // weak Gaussian prior on e cos(varpi), e sin(varpi) when not circular
-    double inclination_prior_rad = 3.0 * 0.017453292519943295;  // weak Gaussian prior on the tilt components
-    int grid_distances = 10;
-    int grid_longitudes = 16;
-    int starts = 4;                        // distinct grid minima refined by Levenberg-Marquardt
-    int samples = 300;                     // covariance samples for the ellipse check and the 90% radius
-    std::optional<double> epoch_year;      // default: the brief's first search epoch
-    double track_years = 60.0;             // predicted track +- this around the epoch
-    double track_step_years = 0.25;
-    std::uint64_t seed = 1;                // for the covariance samples
-    ModelOptions model;
-    unsigned threads = 0;                  // 0: all cores (results do not depend on it)
-    std::string describe() const;          // one line in words
-};
 
 struct Minimum {
     HiddenOrbit orbit;
