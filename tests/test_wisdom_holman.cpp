@@ -117,8 +117,8 @@ TEST_CASE("Wisdom-Holman model agrees with the adaptive model on every bundled s
             }
             const ModelRun ref = run_model(ref_setup, state, ref_setup.t_end);
             const ModelRun fast = run_model(fast_setup, state, fast_setup.t_end);
-            REQUIRE(ref.ok);
-            REQUIRE(fast.ok);
+            REQUIRE(ref.ok());
+            REQUIRE(fast.ok());
             double worst = 0.0;
             for (const FitObservation& f : ref_setup.obs) {
                 std::vector<std::size_t> bodies = {ref.planet_index[f.planet]};
