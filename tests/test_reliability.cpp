@@ -15,6 +15,7 @@
 #include "sim/exercise/exercise.hpp"
 #include "sim/io/fileio.hpp"
 #include "sim/io/hash.hpp"
+#include "sim/io/toml_reader.hpp"
 #include "test_helpers.hpp"
 
 using namespace wayward;
@@ -354,4 +355,10 @@ TEST_CASE("reliability: the trainee's folder alone cannot reproduce the truth; t
     REQUIRE(twice.status == 0);
     CHECK(load_brief((dir / "a" / "brief.toml").string()).answer_key_sha256 != load_brief((dir / "b" / "brief.toml").string()).answer_key_sha256);
     fs::remove_all(dir);
+}
+
+TEST_CASE("reliability: a TOML input that trips toml++'s own assertion in a header-only build is a clean InputError here") {
+    // Found by fuzzing toml++ 3.3.0 header-only with assertions on (parse_key asserts); Debian's shared
+    // libtomlplusplus, which we link, reports a parse error instead.
+    CHECK_THROWS_WITH_AS(detail::parse_toml("[,", "x.toml"), doctest::Contains("x.toml:1: malformed TOML"), InputError);
 }
