@@ -362,3 +362,19 @@ TEST_CASE("reliability: a TOML input that trips toml++'s own assertion in a head
     // libtomlplusplus, which we link, reports a parse error instead.
     CHECK_THROWS_WITH_AS(detail::parse_toml("[,", "x.toml"), doctest::Contains("x.toml:1: malformed TOML"), InputError);
 }
+
+TEST_CASE("reliability: new says so when a scenario has no hidden body instead of claiming one") {
+    const fs::path dir = scratch("control");
+    std::string text = read(tutorial());
+    const auto from = text.find("[[body]]\nname = \"Ember\"");
+    const auto to = text.find("[observing]");
+    REQUIRE(from != std::string::npos);
+    REQUIRE(to != std::string::npos);
+    text.erase(from, to - from);
+    write(dir / "control.toml", text);
+    const auto r = run_cli("new " + (dir / "control.toml").string() + " --seed 1 --out " + (dir / "ex").string());
+    CHECK(r.status == 0);
+    CHECK(contains(r.output, "No hidden body"));
+    CHECK_FALSE(contains(r.output, "A hidden body is in the system"));
+    fs::remove_all(dir);
+}
