@@ -16,6 +16,7 @@
 #include "sim/io/fileio.hpp"
 #include "sim/io/hash.hpp"
 #include "sim/io/toml_reader.hpp"
+#include "sim/truth/answer_key.hpp"
 #include "test_helpers.hpp"
 
 using namespace wayward;
@@ -376,5 +377,16 @@ TEST_CASE("reliability: new says so when a scenario has no hidden body instead o
     CHECK(r.status == 0);
     CHECK(contains(r.output, "No hidden body"));
     CHECK_FALSE(contains(r.output, "A hidden body is in the system"));
+    fs::remove_all(dir);
+}
+
+TEST_CASE("reliability: score still finds the key of a folder made before the key moved beside it") {
+    const fs::path dir = scratch("legacy");
+    const fs::path ex = make_exercise(dir);
+    fs::rename(dir / "ex-answer-key", ex / "answer-key");
+    CHECK(find_answer_key(ex.string()) == (ex / "answer-key" / "answer_key.toml").string());
+    const auto r = run_cli("score " + ex.string() + " --lon 10 --lat 0 --epoch 1940");
+    CHECK(r.status == 0);
+    CHECK(contains(r.output, "Answer key verified"));
     fs::remove_all(dir);
 }

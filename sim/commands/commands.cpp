@@ -260,7 +260,7 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
         p = s.prediction;
         source = path;
     }
-    const std::string key_path = args.key.empty() ? exercise_paths(args.dir).answer_key() : args.key;
+    const std::string key_path = args.key.empty() ? find_answer_key(args.dir) : args.key;
     const AnswerKey key = open_answer_key(ex.brief, key_path);
     const Score sc = score_prediction(ex.brief, key, p, args.window_years);
     // A prediction of the trainee's own gets files of its own, so it never overwrites the solver's luck curve.

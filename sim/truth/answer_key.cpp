@@ -107,6 +107,12 @@ std::string answer_key_text(const Scenario& sc, const Truth& truth, const std::s
     return "# Wayward answer key: the truth. Do not open before the prediction is made.\n" + toml_text(root);
 }
 
+std::string find_answer_key(const std::string& dir) {
+    const std::string beside = exercise_paths(dir).answer_key(), inside = dir + "/answer-key/answer_key.toml";
+    std::error_code ec;
+    return !fs::exists(beside, ec) && fs::exists(inside, ec) ? inside : beside;
+}
+
 AnswerKey open_answer_key(const Brief& brief, const std::string& key_path) {
     const std::string text = detail::read_text_file(key_path);
     if (sha256_hex(text) != brief.answer_key_sha256)

@@ -40,6 +40,10 @@ std::string secret_hex(std::size_t bytes);
 // A fresh secret seed for a system nobody chose (below 2^63, so it fits the key's TOML integer).
 std::uint64_t secret_seed();
 
+// Where to read an exercise's key when none is named: beside the folder, or, for folders made before the key moved
+// out, DIR/answer-key/answer_key.toml when only that exists.
+std::string find_answer_key(const std::string& dir);
+
 // Opens the answer key after checking its SHA-256 against the brief (InputError if it was changed).
 AnswerKey open_answer_key(const Brief& brief, const std::string& key_path);
 // The key from its text, without the digest check (open_answer_key checks first, then calls this).
