@@ -227,6 +227,8 @@ TEST_CASE("reliability: inputs that would hang or run away are refused up front"
         {replace_line(text, "span_years", "span_years = 160.0\n[scenario.plausibility]\nmax_draws = 4294967297"), "scenario.plausibility.max_draws"},
         {replace_line(text, "span_years", "span_years = 160.0\n[scenario.plausibility]\nmax_energy_error = 1e-30"), "max_energy_error"},
         {replace_line(text, "a = 1.0", "a = 0.01"), "revolutions"},
+        {replace_line(replace_line(text, "a = 1.0", "a = 0.2"), "span_years", "span_years = 160.0\n[scenario.plausibility]\nmax_draws = 2000"),
+         "could run for a long time"},
         {replace_line(text, "per_season", "per_season = 4294967297"), "per_season"}};
     for (const auto& [scenario, field] : scenarios) {
         CAPTURE(field);

@@ -207,6 +207,7 @@ namespace {
 // span bound the cost of every run. A close-in planet (a = 0.01 au circles in hours) over centuries would take
 // hours; refuse it up front with the reason rather than run for minutes without a word.
 constexpr double max_innermost_orbits = 20000.0;
+constexpr double max_draw_orbits = 5e5;
 
 void check_integration_cost(const Scenario& sc) {
     double a_min = std::numeric_limits<double>::infinity();
@@ -235,6 +236,15 @@ void check_integration_cost(const Scenario& sc) {
         msg << "an orbit this close (" << a_min << " au) makes " << std::llround(orbits) << " revolutions over the " << sc.span_years
             << "-year span, more than the " << max_innermost_orbits << " Wayward integrates in reasonable time; move it out or shorten span_years";
         throw InputError(sc.file, line, field, msg.str());
+    }
+    // Every rejected draw may cost a check integration, so draws times revolutions bounds the worst case too
+    // (5e5 is a few minutes of one core for a five-body system; the bundled scenarios need at most 6e4).
+    if (!sc.all_fixed() && sc.rules.max_draws * orbits > max_draw_orbits) {
+        std::ostringstream msg;
+        msg << "max_draws = " << sc.rules.max_draws << " check integrations of " << std::llround(orbits)
+            << " revolutions each could run for a long time; keep max_draws x revolutions of the innermost orbit below "
+            << max_draw_orbits << " (max_draws at most " << static_cast<long long>(max_draw_orbits / orbits) << " here)";
+        throw InputError(sc.file, 0, "scenario.plausibility.max_draws", msg.str());
     }
 }
 }  // namespace
