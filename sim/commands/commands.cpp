@@ -13,6 +13,7 @@
 #include "sim/truth/exercise_writer.hpp"
 #include "sim/io/fileio.hpp"
 #include "sim/fit/known_fit.hpp"
+#include "sim/report/luck_report.hpp"
 #include "sim/report/report.hpp"
 #include "sim/truth/generate.hpp"
 #include "sim/physics/geometry.hpp"
@@ -138,51 +139,37 @@ int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& pr
 
 namespace wayward {
 
+namespace {
+
+// The solver names its options by their library fields; the user typed flags.
+InputError as_flag_error(const InputError& e) {
+    static const std::map<std::string, std::string> flags = {
+        {"distance", "--distance"}, {"ecc_sigma", "--ecc-sigma"}, {"tilt_sigma_deg", "--tilt-sigma"},
+        {"samples", "--samples"},   {"starts", "--starts"},       {"epoch_year", "--epoch"}};
+    const auto it = flags.find(e.field());
+    if (!e.file().empty() || it == flags.end()) return e;
+    return InputError("", 0, it->second, e.message());
+}
+
+}  // namespace
+
 SolveOptions solve_options(const SolveArgs& a) {
     SolveOptions o;
-    const std::string& d = a.distance;
-    auto number = [&](const std::string& text) {
-        char* end = nullptr;
-        const double v = std::strtod(text.c_str(), &end);
-        if (text.empty() || *end != '\0' || !std::isfinite(v))
-            throw InputError("", 0, "--distance", "\"" + text + "\" is not a number (use free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION])");
-        return v;
-    };
-    if (d == "free") {
-        o.distance = DistancePrior::free;
-    } else if (d.rfind("fixed:", 0) == 0) {
-        o.distance = DistancePrior::fixed;
-        o.distance_au = number(d.substr(6));
-        if (!(o.distance_au > 0)) throw InputError("", 0, "--distance", "a fixed distance must be positive");
-    } else if (d.rfind("gauss:", 0) == 0) {
-        o.distance = DistancePrior::gaussian;
-        const std::string rest = d.substr(6);
-        const auto comma = rest.find(',');
-        if (comma == std::string::npos) throw InputError("", 0, "--distance", "gauss needs a mean and a sigma: gauss:A,SIGMA");
-        o.distance_au = number(rest.substr(0, comma));
-        o.distance_sigma_au = number(rest.substr(comma + 1));
-        if (!(o.distance_au > 0 && o.distance_sigma_au > 0)) throw InputError("", 0, "--distance", "mean and sigma must be positive");
-    } else if (d == "spacing" || d.rfind("spacing:", 0) == 0) {
-        o.distance = DistancePrior::spacing;
-        if (d.size() > 8) o.spacing_sigma_fraction = number(d.substr(8));
-        if (!(o.spacing_sigma_fraction > 0 && o.spacing_sigma_fraction < 1))
-            throw InputError("", 0, "--distance", "the spacing prior's sigma fraction must be in (0, 1)");
-    } else {
-        throw InputError("", 0, "--distance", "unknown prior \"" + d + "\" (use free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION])");
-    }
     o.circular = a.circular;
     o.coplanar = a.coplanar;
-    if (!(a.ecc_sigma > 0 && a.ecc_sigma < 1)) throw InputError("", 0, "--ecc-sigma", "must be in (0, 1)");
-    if (!(a.tilt_sigma_deg > 0 && a.tilt_sigma_deg < 90)) throw InputError("", 0, "--tilt-sigma", "must be in (0, 90) degrees");
     o.eccentricity_prior_sigma = a.ecc_sigma;
     o.inclination_prior_rad = a.tilt_sigma_deg * deg;
     o.epoch_year = a.epoch_year;
-    if (a.samples < 20 || a.samples > 100000) throw InputError("", 0, "--samples", "must be in [20, 100000]");
-    if (a.starts < 1 || a.starts > 64) throw InputError("", 0, "--starts", "must be in [1, 64]");
     o.samples = a.samples;
     o.starts = a.starts;
     o.threads = a.threads;
     if (a.neglect_light_time) o.model.light_time = LightTime::neglected;
+    try {
+        set_distance_prior(o, a.distance);  // validates every option
+    } catch (const InputError& e) {
+        throw as_flag_error(e);
+    }
+    if (o.samples == 0) throw InputError("", 0, "--samples", "must be in [20, 100000]");
     return o;
 }
 
@@ -193,7 +180,12 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     Progress bar(progress_out, args.quiet);
     SolveProgress sp;
     sp.report = [&](const std::string& stage, double f) { bar.update(stage, f); };
-    const Solution s = solve(ex, o, sp);
+    Solution s;
+    try {
+        s = solve(ex, o, sp);
+    } catch (const InputError& e) {
+        throw as_flag_error(e);
+    }
     bar.finish();
     write_file_atomic(args.dir + "/solution.toml", solution_toml(s));
 
@@ -291,6 +283,8 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
 
 #include "sim/budget/budget.hpp"
 #include "sim/campaign/campaign.hpp"
+#include "sim/report/budget_report.hpp"
+#include "sim/report/campaign_report.hpp"
 
 namespace wayward {
 
@@ -331,7 +325,7 @@ int run_campaign_command(const CampaignArgs& args, std::ostream& out, std::ostre
                  << " are in " << args.out_dir << "/cases.csv; run the same command again to finish the rest.\n";
         return 130;
     }
-    out << detail::read_text_file(args.out_dir + "/summary.txt");
+    out << write_campaign_report(o.rows, o.manifest, args.out_dir);
     out << "Wrote " << args.out_dir << "/cases.csv (" << o.shard_cases << " cases, " << o.resumed << " from an earlier run), summary.txt, "
         << "success_vs_epoch.png, separations.png, luck_fraction.png, closest_agreement.png\n";
     return 0;
@@ -339,7 +333,9 @@ int run_campaign_command(const CampaignArgs& args, std::ostream& out, std::ostre
 
 int run_merge(const MergeArgs& args, std::ostream& out) {
     if (args.out_dir.empty()) throw InputError("", 0, "--out", "is required");
-    merge_campaigns(args.dirs, args.out_dir, out);
+    const MergedCampaign m = merge_campaigns(args.dirs, args.out_dir, out);
+    out << write_campaign_report(m.rows, m.manifest, args.out_dir);
+    out << "Wrote " << args.out_dir << "/cases.csv, summary.txt and the plots\n";
     return 0;
 }
 

@@ -145,7 +145,7 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     if (state.hidden) {
         const HiddenOrbit& h = *state.hidden;
         if (!(h.mass > 0.0) || !(h.semi_major_axis > 0.0) || !(std::hypot(h.k, h.h) < 0.95) || !std::isfinite(h.mean_longitude)) {
-            run.problem = "hidden-body parameters out of range";
+            run.outcome = ModelOutcome::parameters_out_of_range;
             return run;
         }
         const double gm_h = gm_from_mass(h.mass);
@@ -169,12 +169,23 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     const double t0 = t_begin.value_or(setup.t_begin);
     IntegrationResult r = integrate(sys, t0, std::max(t_end, t0), io);
     if (r.outcome != IntegrationOutcome::ok) {
-        run.problem = "model integration failed: " + to_string(r.outcome);
+        run.outcome = ModelOutcome::integration_failed;
+        run.integration = r.outcome;
         return run;
     }
     run.outer = std::move(r.ephemeris);
-    run.ok = true;
+    run.outcome = ModelOutcome::ok;
     return run;
+}
+
+std::string ModelRun::problem() const {
+    switch (outcome) {
+        case ModelOutcome::not_run: return "the model was not run";
+        case ModelOutcome::ok: return "none";
+        case ModelOutcome::parameters_out_of_range: return "hidden-body parameters out of range";
+        case ModelOutcome::integration_failed: return "model integration failed: " + to_string(integration);
+    }
+    return "unknown";
 }
 
 namespace {
@@ -182,17 +193,8 @@ SkyPosition apparent_from(const ModelSetup& setup, const ModelRun& run, std::siz
     const double gm_star = setup.known.gm[0], gm_obs = setup.known.gm[setup.observer];
     const double star_share = gm_star / (gm_star + gm_obs);
     const Vec3 observer = run.outer.position(0, t) + star_share * observer_helio;
-    Vec3 rel = run.outer.position(index, t) - observer;
-    if (setup.options.light_time == LightTime::corrected) {
-        double tau = rel.norm() / c_au_per_day;
-        for (int it = 0; it < 8; ++it) {
-            rel = run.outer.position(index, std::max(t - tau, run.outer.t_begin())) - observer;
-            const double next = rel.norm() / c_au_per_day;
-            const bool done = std::abs(next - tau) < 1e-13;
-            tau = next;
-            if (done) break;
-        }
-    }
+    const Vec3 rel = setup.options.light_time == LightTime::corrected ? solve_light_time(run.outer, index, t, observer).relative
+                                                                       : Vec3(run.outer.position(index, t) - observer);
     return to_sky(setup.frame.to_frame(rel));
 }
 }  // namespace
@@ -202,7 +204,7 @@ SkyPosition model_apparent(const ModelSetup& setup, const ModelRun& run, std::si
 }
 
 bool weighted_residuals(const ModelSetup& setup, const ModelRun& run, Eigen::VectorXd& out) {
-    if (!run.ok) return false;
+    if (!run.ok()) return false;
     out.resize(static_cast<Eigen::Index>(2 * setup.obs.size()));
     for (std::size_t k = 0; k < setup.obs.size(); ++k) {
         const FitObservation& f = setup.obs[k];

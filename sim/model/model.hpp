@@ -71,9 +71,12 @@ ModelSetup make_setup(const Exercise& ex, const ModelOptions& options = {});
 ModelState initial_state(const ModelSetup& setup);
 
 // Forward model: integrate and return (optionally) the model's apparent positions at the observations.
+enum class ModelOutcome { not_run, ok, parameters_out_of_range, integration_failed };
 struct ModelRun {
-    bool ok = false;
-    std::string problem;
+    ModelOutcome outcome = ModelOutcome::not_run;
+    IntegrationOutcome integration = IntegrationOutcome::ok;  // why, when outcome is integration_failed
+    bool ok() const { return outcome == ModelOutcome::ok; }
+    std::string problem() const;         // the outcome in words, for messages
     Ephemeris outer;                     // central pair + observed planets (+ hidden), barycentric
     std::vector<std::size_t> planet_index;  // index in `outer` of each observed planet
     std::optional<std::size_t> hidden_index;
