@@ -165,7 +165,7 @@ TEST_CASE("campaign CLI: bad input exits 2 with a clear message before any work,
     const fs::path victim = dir / "victim.txt";
     write(victim, "keep me\n");
     write(spec, spec_text(quick));
-    for (const char* name : {".lock", "cases.csv"}) {
+    for (const char* name : {".wayward.lock", "cases.csv"}) {
         const fs::path planted = dir / (std::string("planted-") + (name[0] == '.' ? "lock" : "cases"));
         fs::create_directories(planted);
         fs::create_symlink(victim, planted / name);

@@ -81,7 +81,7 @@ TEST_SUITE("viewer_trainee") {
 TEST_CASE("an exercise folder opens in trainee mode with the team's model and no hidden body, even without the key") {
     const std::string dir = make_exercise("scenarios/default.toml", "no-key");
     // Move the sealed answer key away: opening must not need it.
-    const fs::path key_dir = fs::path(dir) / "answer-key", away = work_dir() / "no-key-answer-key";
+    const fs::path key_dir = default_key_dir(dir), away = work_dir() / "no-key-key-moved-away";
     fs::remove_all(away);
     fs::rename(key_dir, away);
     LoadOutcome loaded = open(dir, false);

@@ -153,7 +153,7 @@ bool Analysis::request_reveal(const ViewerModel& model) {
     reveal_error.clear();
     if (model.revealed || reveal_job.running()) return true;
     try {
-        opened_key_ = open_answer_key(exercise_->brief, exercise_paths(exercise_->dir).answer_key());
+        opened_key_ = open_answer_key(exercise_->brief, find_answer_key(exercise_->dir));
     } catch (const std::exception& e) {
         reveal_error = e.what();
         opened_key_.reset();

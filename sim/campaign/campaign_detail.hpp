@@ -43,19 +43,6 @@ std::string short_id(const std::string& id);
 // Creates the output folder (InputError naming --out when it cannot).
 void make_folder(const std::string& dir);
 
-// An exclusive lock on DIR/.lock for the lifetime of the object: two runs never share a folder. The lock file
-// is opened without following a link planted at its name.
-class FolderLock {
-public:
-    explicit FolderLock(const std::string& dir);
-    ~FolderLock();
-    FolderLock(const FolderLock&) = delete;
-    FolderLock& operator=(const FolderLock&) = delete;
-
-private:
-    int fd_ = -1;
-};
-
 // Appends whole lines with one write() call each time, then flushes them to disk. Never follows a link planted
 // at the journal's name.
 class Journal {

@@ -45,21 +45,6 @@ namespace wayward {
 namespace fs = std::filesystem;
 using detail::TableReader;
 
-FolderLock::FolderLock(const std::string& dir) {
-    const std::string path = (fs::path(dir) / ".lock").string();
-    fd_ = ::open(path.c_str(), O_RDWR | O_CREAT | O_CLOEXEC | O_NOFOLLOW, 0644);
-    if (fd_ < 0) throw InputError(dir, 0, "--out", std::string("cannot write in the folder: ") + std::strerror(errno));
-    if (::flock(fd_, LOCK_EX | LOCK_NB) != 0) {
-        ::close(fd_);
-        fd_ = -1;
-        throw InputError(dir, 0, "--out", "another wayward campaign or merge is using this folder right now");
-    }
-}
-
-FolderLock::~FolderLock() {
-    if (fd_ >= 0) ::close(fd_);
-}
-
 Journal::Journal(const std::string& path) : path_(path) {
     fd_ = ::open(path.c_str(), O_WRONLY | O_APPEND | O_CREAT | O_CLOEXEC | O_NOFOLLOW, 0644);
     if (fd_ < 0) throw InputError(path, 0, "--out", std::string("cannot write: ") + std::strerror(errno));

@@ -119,7 +119,7 @@ MergedCampaign merge_campaigns(const std::vector<std::string>& dirs, const std::
     }
 
     make_folder(out_dir);
-    const FolderLock lock(out_dir);
+    const WriterLock lock(out_dir, "--out");  // two runs never share a folder
     CampaignManifest merged = ref;
     merged.shard = Shard{};
     merged.merged_from = dirs;

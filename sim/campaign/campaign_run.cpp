@@ -322,7 +322,7 @@ std::size_t run_units(const CampaignSpec& spec, const CampaignRun& run, const Pl
 CampaignOutcome run_campaign(const CampaignSpec& spec, const CampaignRun& run, std::ostream& progress_out) {
     CampaignOutcome outcome;
     make_folder(run.out_dir);
-    const FolderLock lock(run.out_dir);
+    const WriterLock lock(run.out_dir, "--out");  // two runs never share a folder
     const CampaignManifest want = manifest_for(spec, run.shard);
     claim_folder(spec, run, want);
     const std::vector<char> done = finished_cases(spec, run, outcome, progress_out);

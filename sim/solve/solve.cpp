@@ -510,10 +510,10 @@ Solution load_solution(const std::string& path) {
         s.scenario_name = r.string("scenario").value_or("");
         s.priors = r.string("priors").value_or("");
         s.chi2 = r.number_or("chi2", 0.0);
-        s.dof = static_cast<std::size_t>(r.integer("dof").value_or(0));
+        s.dof = static_cast<std::size_t>(r.integer_in("dof", 0, 1LL << 40).value_or(0));
         s.covariance_scaled = r.boolean("covariance_scaled").value_or(false);
         s.spacing_rule_au = r.number_or("spacing_rule_au", 0.0);
-        s.model_runs = static_cast<int>(r.integer("model_runs").value_or(0));
+        s.model_runs = static_cast<int>(r.integer_in("model_runs", 0, 1LL << 30).value_or(0));
         r.finish();
     }
     if (const toml::table* h = root.table("hidden")) {
@@ -537,6 +537,7 @@ Solution load_solution(const std::string& path) {
         detail::TableReader r(*pt, path, "prediction");
         Prediction& p = s.prediction;
         p.epoch_year = r.required_number("epoch_year");
+        if (!(std::abs(p.epoch_year) <= 1e6)) r.fail("epoch_year", "must be a year within a million years of 0");
         p.lon = r.required_number("lon_deg") * deg;
         p.lat = r.required_number("lat_deg") * deg;
         if (!(p.lat >= -pi / 2 && p.lat <= pi / 2)) r.fail("lat_deg", "must be in [-90, 90]");
@@ -550,12 +551,24 @@ Solution load_solution(const std::string& path) {
         p.sampled_semi_major_arcsec = r.number_or("sampled_semi_major_arcmin", 0.0) * 60.0;
         p.sampled_semi_minor_arcsec = r.number_or("sampled_semi_minor_arcmin", 0.0) * 60.0;
         p.radius90_arcsec = r.number_or("radius90_arcmin", 0.0) * 60.0;
-        p.samples_used = static_cast<int>(r.integer("samples").value_or(0));
+        p.samples_used = static_cast<int>(r.integer_in("samples", 0, 1LL << 30).value_or(0));
         const auto ys = r.numbers("track_year").value_or(std::vector<double>{});
         const auto ls = r.numbers("track_lon_deg").value_or(std::vector<double>{});
         const auto bs = r.numbers("track_lat_deg").value_or(std::vector<double>{});
         if (ys.size() != ls.size() || ys.size() != bs.size()) r.fail("track_year", "the track arrays differ in length");
-        for (std::size_t k = 0; k < ys.size(); ++k) p.track.push_back({ys[k], ls[k] * deg, bs[k] * deg});
+        // The luck curve steps along the track: years must rise by at least a thousandth of a year (the solver
+        // writes quarter years), or scoring would loop without end; the length is bounded for the same reason.
+        constexpr std::size_t max_track_points = 100000;
+        if (ys.size() > max_track_points) r.fail("track_year", "holds more than " + std::to_string(max_track_points) + " points");
+        for (std::size_t k = 1; k < ys.size(); ++k)
+            if (!(ys[k] >= ys[k - 1] + 1e-3))
+                r.fail("track_year", "the track's years must increase (by at least 0.001 year); entry " + std::to_string(k + 1) +
+                                         " does not");
+        for (std::size_t k = 0; k < ys.size(); ++k) {
+            if (!(std::abs(ys[k]) <= 1e6)) r.fail("track_year", "holds a year more than a million years from 0");
+            if (!(bs[k] >= -90.0 && bs[k] <= 90.0)) r.fail("track_lat_deg", "must be in [-90, 90]");
+            p.track.push_back({ys[k], ls[k] * deg, bs[k] * deg});
+        }
         r.finish();
     }
     for (const toml::table* t : root.tables("minimum")) {
