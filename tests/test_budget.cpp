@@ -8,6 +8,7 @@
 #include <filesystem>
 
 #include "sim/budget/budget.hpp"
+#include "sim/report/budget_report.hpp"
 #include "sim/base/errors.hpp"
 #include "sim/truth/generate.hpp"
 #include "sim/truth/observe.hpp"

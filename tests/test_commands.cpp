@@ -84,7 +84,7 @@ TEST_CASE("score refuses a tampered answer key and a solution made for another e
     CHECK(other.status == 2);
     CHECK(other.output.find("another exercise") != std::string::npos);
     // Tamper with A's key.
-    const fs::path key = a / "answer-key/answer_key.toml";
+    const fs::path key = fs::path(default_key_dir(a.string())) / "answer_key.toml";
     std::string text = read(key);
     text.replace(text.find("mass = "), 8, "mass = 9");
     write(key, text);

@@ -51,7 +51,7 @@ TEST_CASE("least squares: NIST StRD Misra1a reaches the certified parameters and
         LeastSquaresProblem p = base;
         p.step = Eigen::Vector2d(1e-7 * start[0], 1e-7 * start[1]);
         const LeastSquaresResult r = levenberg_marquardt(p, Eigen::Vector2d(start[0], start[1]), 200);
-        CHECK(r.converged);
+        CHECK(r.converged());
         // The stopping rule (chi2 within 1e-4 of the minimum) leaves the parameters within 1% of their
         // certified standard errors of the certified values (a chi2 excess of 1e-4 is (0.01 sigma)^2).
         CHECK(std::abs(r.x[0] - b1) < 0.01 * sd_b1);
@@ -91,6 +91,22 @@ TEST_CASE("least squares: a model that cannot be evaluated at the start is repor
     p.evaluate = [](const Eigen::VectorXd&, Eigen::VectorXd&) { return false; };
     p.step = Eigen::Vector2d(1e-5, 1e-11);
     const LeastSquaresResult r = levenberg_marquardt(p, Eigen::Vector2d(500.0, 1e-4));
-    CHECK_FALSE(r.converged);
+    CHECK_FALSE(r.converged());
+    CHECK(r.outcome == FitOutcome::model_failed);
+    CHECK_FALSE(r.evaluated);
     CHECK(r.evaluations == 1);
+}
+
+TEST_CASE("least squares: the outcome says why a fit stopped (iteration limit, cancelled)") {
+    LeastSquaresProblem p = misra1a_problem();
+    const Eigen::Vector2d start(500.0, 1e-4);  // NIST StRD Misra1a, start 1
+    p.step = Eigen::Vector2d(1e-7 * start[0], 1e-7 * start[1]);
+    const LeastSquaresResult one = levenberg_marquardt(p, start, 1);
+    CHECK(one.outcome == FitOutcome::iteration_limit);
+    CHECK(one.evaluated);
+    CHECK(std::isfinite(one.chi2));
+    const LeastSquaresResult stopped = levenberg_marquardt(p, start, 200, [] { return true; });
+    CHECK(stopped.outcome == FitOutcome::cancelled);
+    CHECK(stopped.evaluated);
+    CHECK(stopped.iterations == 0);
 }

@@ -258,7 +258,7 @@ TEST_CASE("plot: the legend is drawn in the corner free of data") {
     const Image img = read_png(path);
     REQUIRE(img.ok);
     const Rect area = plot_area(f, 0);
-    // The legend box has a light grey border (0.75 grey, plot.cpp); nothing else in the plot is that grey.
+    // The legend box has a light grey border (0.75 grey, draw_legend in plot_legend.cpp); nothing else in the plot is that grey.
     const Rgb border{191, 191, 191};
     long n = 0;
     double sx = 0.0, sy = 0.0;
@@ -596,7 +596,7 @@ TEST_CASE("plot: writes are atomic and failures name the path") {
     int files = 0;
     for (const auto& e : std::filesystem::directory_iterator(dir)) {
         ++files;
-        CHECK(e.path().filename().string().find(".tmp-") == std::string::npos);
+        CHECK(e.path().filename().string().find("tmp-") == std::string::npos);
     }
     CHECK(files == 2);
 

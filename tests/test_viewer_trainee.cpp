@@ -81,7 +81,7 @@ TEST_SUITE("viewer_trainee") {
 TEST_CASE("an exercise folder opens in trainee mode with the team's model and no hidden body, even without the key") {
     const std::string dir = make_exercise("scenarios/default.toml", "no-key");
     // Move the sealed answer key away: opening must not need it.
-    const fs::path key_dir = fs::path(dir) / "answer-key", away = work_dir() / "no-key-answer-key";
+    const fs::path key_dir = default_key_dir(dir), away = work_dir() / "no-key-key-moved-away";
     fs::remove_all(away);
     fs::rename(key_dir, away);
     LoadOutcome loaded = open(dir, false);
@@ -249,23 +249,23 @@ TEST_CASE("the known-bodies fit runs in a worker and gives sim's residuals; the 
 
 TEST_CASE("the Solve panel's priors are `wayward solve`'s") {
     SolveForm f;
-    CHECK(solve_args(f, "D").distance == "free");
+    CHECK(distance_prior_text(solve_options(f)) == "free");
     f.distance = SolveForm::fixed;
     f.fixed_au = 41.5;
-    CHECK(solve_args(f, "D").distance == "fixed:41.5");
-    CHECK(solve_options(solve_args(f, "D")).distance == DistancePrior::fixed);
-    CHECK(solve_options(solve_args(f, "D")).distance_au == 41.5);
+    CHECK(distance_prior_text(solve_options(f)) == "fixed:41.5");
+    CHECK(solve_options(f).distance == DistancePrior::fixed);
+    CHECK(solve_options(f).distance_au == 41.5);
     f.distance = SolveForm::gauss;
     f.gauss_au = 30;
     f.gauss_sigma_au = 4;
-    CHECK(solve_args(f, "D").distance == "gauss:30,4");
-    CHECK(solve_options(solve_args(f, "D")).distance_sigma_au == 4.0);
+    CHECK(distance_prior_text(solve_options(f)) == "gauss:30,4");
+    CHECK(solve_options(f).distance_sigma_au == 4.0);
     f.distance = SolveForm::spacing;
     f.spacing_fraction = 0.2;
     f.circular = true;
     f.coplanar = true;
     f.epoch_year = 1990;
-    const SolveOptions o = solve_options(solve_args(f, "D"));
+    const SolveOptions o = solve_options(f);
     CHECK(o.distance == DistancePrior::spacing);
     CHECK(o.spacing_sigma_fraction == 0.2);
     CHECK(o.circular);
@@ -319,7 +319,7 @@ TEST_CASE("the solver runs in a worker with progress, gives sim's solution, can 
     REQUIRE(a.wait_idle(m, c));
     REQUIRE_MESSAGE(a.solution, a.form_error);
     CHECK(a.source == SolutionSource::run);
-    const Solution direct = solve(a.exercise(), solve_options(solve_args(a.form, a.exercise().dir)));
+    const Solution direct = solve(a.exercise(), solve_options(a.form));
     REQUIRE(a.solution->minima.size() == direct.minima.size());
     for (std::size_t k = 0; k < direct.minima.size(); ++k) CHECK(a.solution->minima[k].chi2 == direct.minima[k].chi2);
     CHECK(a.solution->prediction.lon == direct.prediction.lon);
@@ -344,16 +344,16 @@ TEST_CASE("the solver runs in a worker with progress, gives sim's solution, can 
     CHECK(matched >= 40);
     CHECK(worst < 1.0);  // arcsec: only the planets' small corrections differ
 
-    // A non-best minimum: its track is sim's predict_position for its orbit with the known-fit planets.
+    // A non-best minimum: its track is sim's predict_position for its own polished state (planets included).
     if (direct.minima.size() >= 2) {
         c.selected_minimum = 1;
         REQUIRE(a.wait_idle(m, c));
         REQUIRE(a.minimum_view);
         CHECK(a.minimum_view->minimum == 1);
         CHECK_FALSE(a.minimum_view->exact);
-        ModelState state = a.fit->state;
-        state.hidden = direct.minima[1].orbit;
-        const Prediction p = predict_position(a.fit->setup, state, direct.prediction.epoch_year, 60.0, 0.25);
+        REQUIRE(direct.setup);
+        const ModelState state = direct.fit.state(*direct.setup, direct.minima[1].parameters);
+        const Prediction p = predict_position(*direct.setup, state, direct.prediction.epoch_year, 60.0, 0.25);
         CHECK(a.minimum_view->prediction.lon == p.lon);
         CHECK(a.minimum_view->prediction.lat == p.lat);
         CHECK(shown_prediction(m, c, &exact) == &a.minimum_view->prediction);

@@ -16,6 +16,7 @@
 
 #include <unistd.h>
 
+#include "sim/exercise/exercise.hpp"
 #include "test_helpers.hpp"
 #include "viewer_shots.hpp"
 
@@ -102,7 +103,7 @@ TEST_CASE("trainee mode shows no pixel of the hidden body's colour before the re
 TEST_CASE("a changed answer key: exit 2, the message in the window and on stderr, nothing revealed") {
     require_display();
     const std::string dir = make_exercise("tampered");
-    const std::string key = dir + "/answer-key/answer_key.toml";
+    const std::string key = wayward::default_key_dir(dir) + "/answer_key.toml";
     std::string text;
     {
         std::ifstream in(key, std::ios::binary);

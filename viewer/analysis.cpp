@@ -1,6 +1,7 @@
 // Scheduling sim's fit, solve, reveal and score for the trainee. See analysis.hpp.
 #include "viewer/analysis.hpp"
 
+#include <charconv>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
@@ -16,10 +17,11 @@ namespace wayward::viewer {
 
 namespace {
 
+// Shortest text that reads back as the same number (a command line must give the solver the same priors).
 std::string number_text(double v) {
-    char buf[48];
-    std::snprintf(buf, sizeof buf, "%g", v);
-    return buf;
+    char buf[32];
+    const auto r = std::to_chars(buf, buf + sizeof buf, v);
+    return std::string(buf, r.ptr);
 }
 
 // The luck curve's half-window: `wayward score`'s default (--window 60).
@@ -27,37 +29,42 @@ constexpr double luck_window_years = 60.0;
 
 }  // namespace
 
-SolveArgs solve_args(const SolveForm& f, const std::string& dir) {
-    SolveArgs a;
-    a.dir = dir;
+SolveOptions solve_options(const SolveForm& f) {
+    SolveOptions o;
     switch (f.distance) {
-        case SolveForm::fixed: a.distance = "fixed:" + number_text(f.fixed_au); break;
-        case SolveForm::gauss: a.distance = "gauss:" + number_text(f.gauss_au) + "," + number_text(f.gauss_sigma_au); break;
-        case SolveForm::spacing: a.distance = "spacing:" + number_text(f.spacing_fraction); break;
-        default: a.distance = "free"; break;
+        case SolveForm::fixed: o.distance = DistancePrior::fixed; o.distance_au = f.fixed_au; break;
+        case SolveForm::gauss: o.distance = DistancePrior::gaussian; o.distance_au = f.gauss_au; o.distance_sigma_au = f.gauss_sigma_au; break;
+        case SolveForm::spacing: o.distance = DistancePrior::spacing; o.spacing_sigma_fraction = f.spacing_fraction; break;
+        default: o.distance = DistancePrior::free; break;
     }
-    a.circular = f.circular;
-    a.coplanar = f.coplanar;
-    a.ecc_sigma = f.ecc_sigma;
-    a.tilt_sigma_deg = f.tilt_sigma_deg;
-    a.epoch_year = f.epoch_year;
-    a.starts = f.starts;
-    a.samples = f.samples;
-    a.quiet = true;
-    return a;
+    o.circular = f.circular;
+    o.coplanar = f.coplanar;
+    o.eccentricity_prior_sigma = f.ecc_sigma;
+    o.inclination_prior_rad = f.tilt_sigma_deg * deg;
+    o.epoch_year = f.epoch_year;
+    o.starts = f.starts;
+    o.samples = f.samples;
+    validate(o);
+    return o;
 }
 
 std::string solve_command(const SolveForm& f, const std::string& dir, double default_epoch) {
-    const SolveArgs a = solve_args(f, dir);
+    const SolveOptions defaults;
+    SolveOptions o;
+    try {
+        o = solve_options(f);
+    } catch (const InputError&) {
+        return "wayward solve " + dir + " (the priors above are not valid yet)";
+    }
     std::string cmd = "wayward solve " + dir;
-    if (a.distance != "free") cmd += " --distance " + a.distance;
-    if (a.circular) cmd += " --circular";
-    if (a.coplanar) cmd += " --coplanar";
-    if (!a.circular && a.ecc_sigma != 0.1) cmd += " --ecc-sigma " + number_text(a.ecc_sigma);
-    if (!a.coplanar && a.tilt_sigma_deg != 3.0) cmd += " --tilt-sigma " + number_text(a.tilt_sigma_deg);
-    if (a.epoch_year && *a.epoch_year != default_epoch) cmd += " --epoch " + number_text(*a.epoch_year);
-    if (a.starts != 4) cmd += " --starts " + std::to_string(a.starts);
-    if (a.samples != 300) cmd += " --samples " + std::to_string(a.samples);
+    if (o.distance != DistancePrior::free) cmd += " --distance " + distance_prior_text(o);
+    if (o.circular) cmd += " --circular";
+    if (o.coplanar) cmd += " --coplanar";
+    if (!o.circular && f.ecc_sigma != defaults.eccentricity_prior_sigma) cmd += " --ecc-sigma " + number_text(f.ecc_sigma);
+    if (!o.coplanar && f.tilt_sigma_deg != 3.0) cmd += " --tilt-sigma " + number_text(f.tilt_sigma_deg);
+    if (o.epoch_year && *o.epoch_year != default_epoch) cmd += " --epoch " + number_text(*o.epoch_year);
+    if (o.starts != defaults.starts) cmd += " --starts " + std::to_string(o.starts);
+    if (o.samples != defaults.samples) cmd += " --samples " + std::to_string(o.samples);
     return cmd;
 }
 
@@ -122,7 +129,7 @@ bool Analysis::start_solve() {
     solve_note.clear();
     SolveOptions options;
     try {
-        options = solve_options(solve_args(form, exercise_->dir));
+        options = solve_options(form);
     } catch (const std::exception& e) {
         form_error = e.what();
         return false;
@@ -146,7 +153,7 @@ bool Analysis::request_reveal(const ViewerModel& model) {
     reveal_error.clear();
     if (model.revealed || reveal_job.running()) return true;
     try {
-        opened_key_ = open_answer_key(exercise_->brief, exercise_paths(exercise_->dir).answer_key());
+        opened_key_ = open_answer_key(exercise_->brief, find_answer_key(exercise_->dir));
     } catch (const std::exception& e) {
         reveal_error = e.what();
         opened_key_.reset();
@@ -305,10 +312,16 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
             v.solution_id = id;
             v.minimum = k;
             v.exact = k == 0;
-            // The solver keeps each minimum's hidden orbit but not its corrections to the planets: those are
-            // taken at their known-fit states here (for the best minimum the prediction is the solver's own).
+            // A solve run here keeps each minimum's whole parameter vector (its own corrections to the planets);
+            // a solution read from a file keeps only the hidden orbits, drawn with the known fit's planets.
+            const bool whole = s->setup && s->minima[k].parameters.size() > 0;
+            const ModelSetup& setup = whole ? *s->setup : f->setup;
             ModelState state = f->state;
-            state.hidden = k == 0 ? s->best : s->minima[k].orbit;
+            if (whole) {
+                state = s->fit.state(setup, s->minima[k].parameters);
+            } else {
+                state.hidden = k == 0 ? s->best : s->minima[k].orbit;
+            }
             const Prediction& best = s->prediction;
             if (k == 0) {
                 v.prediction = best;
@@ -316,12 +329,12 @@ void Analysis::poll(ViewerModel& model, ViewerControls& controls) {
                 const double track_years = best.track.empty() ? 60.0 : std::max(best.epoch_year - best.track.front().year,
                                                                                best.track.back().year - best.epoch_year);
                 const double step = best.track.size() >= 2 ? best.track[1].year - best.track[0].year : 0.25;
-                v.prediction = predict_position(f->setup, state, best.epoch_year, track_years, step);
+                v.prediction = predict_position(setup, state, best.epoch_year, track_years, step);
             }
-            v.fine_track = predict_position(f->setup, state, best.epoch_year, 10.0, 0.01).track;
-            const ModelRun run = run_model(f->setup, state, span_end, 0.0);
+            v.fine_track = predict_position(setup, state, best.epoch_year, 10.0, 0.01).track;
+            const ModelRun run = run_model(setup, state, span_end, 0.0);
             v.xyz.assign(times.size() * 3, std::numeric_limits<float>::quiet_NaN());
-            if (run.ok && run.hidden_index)
+            if (run.ok() && run.hidden_index)
                 for (std::size_t i = 0; i < times.size(); ++i) {
                     if (!run.outer.covers(times[i])) continue;
                     const Vec3 p = run.outer.position(*run.hidden_index, times[i]);

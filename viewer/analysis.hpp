@@ -13,7 +13,6 @@
 #include <string>
 #include <vector>
 
-#include "sim/commands/commands.hpp"
 #include "sim/fit/known_fit.hpp"
 #include "sim/score/score.hpp"
 #include "sim/solve/solve.hpp"
@@ -23,7 +22,7 @@
 
 namespace wayward::viewer {
 
-// The solver's priors as the Solve panel edits them; solve_args() turns them into `wayward solve`'s arguments.
+// The solver's priors as the Solve panel edits them; solve_options() turns them into the solver's options.
 struct SolveForm {
     enum Distance { free = 0, fixed = 1, gauss = 2, spacing = 3 };
     int distance = free;
@@ -38,9 +37,8 @@ struct SolveForm {
     int starts = 4;
     int samples = 300;
 };
-// The same arguments `wayward solve DIR` would get for these priors (SolveArgs::distance as free, fixed:A,
-// gauss:A,SIGMA or spacing:FRACTION).
-SolveArgs solve_args(const SolveForm& form, const std::string& dir);
+// The solver's options for these priors (sim's validation: InputError naming the library field).
+SolveOptions solve_options(const SolveForm& form);
 // The `wayward solve` command line for these priors (shown in the panel); --epoch only when it is not
 // `default_epoch` (the brief's search epoch, which `wayward solve` takes by default).
 std::string solve_command(const SolveForm& form, const std::string& dir, double default_epoch = NAN);

@@ -352,8 +352,12 @@ private:
         }
         ViewerModel& m = *model_;
         ImGui::TextUnformatted(m.facts.name.c_str());
-        ImGui::TextDisabled("%s \u00b7 seed %llu", std::filesystem::path(m.source).filename().string().c_str(),
-                            static_cast<unsigned long long>(m.seed));
+        // A trainee's folder carries no seed (it would regenerate the truth), so only author mode shows one.
+        if (m.mode == ViewerMode::author)
+            ImGui::TextDisabled("%s \u00b7 seed %llu", std::filesystem::path(m.source).filename().string().c_str(),
+                                static_cast<unsigned long long>(m.seed));
+        else
+            ImGui::TextDisabled("%s", std::filesystem::path(m.source).filename().string().c_str());
         if (m.mode == ViewerMode::author)
             ImGui::TextColored(palette::to_imgui(palette::hidden), "Author mode: the hidden body is shown");
         else if (m.revealed)

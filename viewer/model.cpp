@@ -160,7 +160,6 @@ void load_trainee(ViewerModel& m, const std::string& dir) {
     // Brief, observations and the observer's track only: the answer key stays sealed.
     m.exercise = std::make_shared<const Exercise>(load_exercise(dir));
     const Brief& b = m.exercise->brief;
-    m.seed = b.seed;
     m.facts.name = b.scenario_name;
     m.facts.epoch0_year = b.epoch0_year;
     m.facts.span_days = b.span_years * julian_year_days;

@@ -52,8 +52,8 @@ void bm_forward_model(benchmark::State& state, const std::string& scenario, bool
     std::size_t nodes = 0, bodies = 0;
     for (auto _ : state) {
         ModelRun run = run_model(setup, s, setup.t_end);
-        if (!run.ok) {
-            state.SkipWithError(("forward model failed: " + run.problem).c_str());
+        if (!run.ok()) {
+            state.SkipWithError(("forward model failed: " + run.problem()).c_str());
             break;
         }
         nodes = run.outer.nodes();

@@ -18,9 +18,9 @@
 #include "sim/truth/generate.hpp"
 #include "sim/truth/observe.hpp"
 #include "sim/base/parallel.hpp"
-#include "sim/report/plot.hpp"
 #include "sim/base/progress.hpp"
 #include "sim/base/random.hpp"
+#include "sim/base/statistics.hpp"
 #include "sim/score/score.hpp"
 #include "sim/solve/solve.hpp"
 #include "sim/base/units.hpp"
@@ -53,16 +53,6 @@ NoiseSwitches none() {
     NoiseSwitches n;
     n.random = n.systematic = n.rounding = n.outliers = false;
     return n;
-}
-
-double quantile(std::vector<double> v, double q) {
-    v.erase(std::remove_if(v.begin(), v.end(), [](double x) { return !std::isfinite(x); }), v.end());
-    if (v.empty()) return NAN;
-    std::sort(v.begin(), v.end());
-    const double h = q * static_cast<double>(v.size() - 1);  // linear interpolation between order statistics
-    const auto lo = static_cast<std::size_t>(std::floor(h));
-    const std::size_t hi = std::min(lo + 1, v.size() - 1);
-    return v[lo] + (h - static_cast<double>(lo)) * (v[hi] - v[lo]);
 }
 
 std::string num(const char* f, double v) {
@@ -274,128 +264,84 @@ Scenario apply_what_ifs(const Scenario& base, const BudgetOptions& o) {
     return sc;
 }
 
-BudgetResult run_budget(const Scenario& base, const BudgetOptions& o, std::ostream* progress_out) {
-    if (o.runs < 1 || o.runs > 100000) throw InputError("", 0, "--runs", "must be in [1, 100000]");
-    if (o.starts < 1 || o.starts > 64) throw InputError("", 0, "--starts", "must be in [1, 64]");
-    const Scenario sc = apply_what_ifs(base, o);
-    BudgetResult b;
-    b.scenario_name = sc.name;
-    b.epoch_year = sc.plan.search_epochs_year.front();
-    b.field_radius_arcmin = sc.plan.field_radius_deg * 60.0;
-    b.runs = o.runs;
-    b.combined = o.combine;
+namespace {
 
+// The base priors: broad (far wider than any bundled scenario's draws), so that noise-free data are fitted to the
+// numerical floor; the priors matched to the scenario's draws are a line of their own.
+SolveOptions base_solve_options(const BudgetOptions& o, double epoch_year) {
     SolveOptions so;
     so.threads = 1;
     so.samples = 0;  // only the predicted point is scored
     so.starts = o.starts;
     so.grid_distances = o.grid_distances;
     so.grid_longitudes = o.grid_longitudes;
-    so.epoch_year = b.epoch_year;
-    // Base priors: broad (far wider than any bundled scenario's draws), so that noise-free data are fitted to the
-    // numerical floor; the priors matched to the scenario's draws are a line of their own.
-    const BodySpec* hidden = hidden_spec(sc);
+    so.epoch_year = epoch_year;
     so.eccentricity_prior_sigma = o.ecc_sigma.value_or(kBroadEccSigma);
     so.inclination_prior_rad = o.tilt_sigma_deg.value_or(kBroadTiltSigmaDeg) * deg;
     if (!(so.eccentricity_prior_sigma > 0 && so.eccentricity_prior_sigma < 1)) throw InputError("", 0, "--ecc-sigma", "must be in (0, 1)");
     if (!(so.inclination_prior_rad > 0 && so.inclination_prior_rad < 90 * deg)) throw InputError("", 0, "--tilt-sigma", "must be in (0, 90) degrees");
-    const double matched_ecc = hidden ? matched_sigma(hidden->e, 0.01, 0.5, 0.3) : 0.3;
-    const double matched_tilt = (hidden ? matched_sigma(hidden->i_deg, 0.5, 30.0, 10.0) : 10.0) * deg;
-    const bool priors_differ = matched_ecc != so.eccentricity_prior_sigma || matched_tilt != so.inclination_prior_rad;
-    b.priors = "prior sigma " + num("%g", so.eccentricity_prior_sigma) + " on e cos(varpi), e sin(varpi) and " +
-               num("%g", so.inclination_prior_rad / deg) + " deg on the tilt components" +
-               (o.ecc_sigma || o.tilt_sigma_deg ? " (as given)" : " (broad)");
-    const std::string matched_words = num("%g", matched_ecc) + ", " + num("%g", matched_tilt / deg) + " deg";
-    {
-        std::vector<std::string> w;
-        for (const auto& [label, f] : o.era_sigma_scale) w.push_back("era \"" + label + "\" sigma x" + num("%g", f));
-        if (o.end_year) w.push_back("last era ends " + num("%g", *o.end_year));
-        if (o.cadence != 1.0) w.push_back("cadence x" + num("%g", o.cadence));
-        if (o.mass_error) w.push_back("mass error " + num("%g", 100.0 * *o.mass_error) + "%");
-        for (const std::string& s : w) b.what_if += (b.what_if.empty() ? "" : ", ") + s;
+    return so;
+}
+
+std::string what_if_words(const BudgetOptions& o) {
+    std::vector<std::string> w;
+    for (const auto& [label, f] : o.era_sigma_scale) w.push_back("era \"" + label + "\" sigma x" + num("%g", f));
+    if (o.end_year) w.push_back("last era ends " + num("%g", *o.end_year));
+    if (o.cadence != 1.0) w.push_back("cadence x" + num("%g", o.cadence));
+    if (o.mass_error) w.push_back("mass error " + num("%g", 100.0 * *o.mass_error) + "%");
+    std::string text;
+    for (const std::string& s : w) text += (text.empty() ? "" : ", ") + s;
+    return text;
+}
+
+// Every key of --only (any line) or --combine (error sources only) names a line of this budget.
+void check_keys(const std::vector<LineSpec>& specs, const std::vector<std::string>& keys, const std::string& option, bool sources_only) {
+    auto allowed = [&](const LineSpec& s) { return !sources_only || (s.key != "all-off" && s.key != "all-on" && s.present); };
+    for (const std::string& k : keys) {
+        const auto it = std::find_if(specs.begin(), specs.end(), [&](const LineSpec& s) { return s.key == k; });
+        if (it != specs.end() && allowed(*it)) continue;
+        std::string names;
+        for (const LineSpec& s : specs)
+            if (allowed(s)) names += (names.empty() ? "" : ", ") + s.key;
+        throw InputError("", 0, option, "no " + std::string(sources_only ? "source" : "line") + " \"" + k + "\" in this budget (" +
+                                             (sources_only ? "sources" : "lines") + ": " + names + ")");
     }
+}
 
-    const std::vector<LineSpec> specs = line_specs(sc, sc.plan.brief_mass_error, priors_differ, matched_words, o.combine);
-    auto check_keys = [&](const std::vector<std::string>& keys, const std::string& option, bool sources_only) {
-        for (const std::string& k : keys) {
-            const auto it = std::find_if(specs.begin(), specs.end(), [&](const LineSpec& s) { return s.key == k; });
-            const bool ok = it != specs.end() && (!sources_only || (k != "all-off" && k != "all-on" && it->present));
-            if (ok) continue;
-            std::string names;
-            for (const LineSpec& s : specs)
-                if (!sources_only || (s.key != "all-off" && s.key != "all-on" && s.present)) names += (names.empty() ? "" : ", ") + s.key;
-            throw InputError("", 0, option, "no " + std::string(sources_only ? "source" : "line") + " \"" + k + "\" in this budget (" +
-                                                 (sources_only ? "sources" : "lines") + ": " + names + ")");
+// The priors matched to the scenario's draws (the line that uses them).
+struct MatchedPriors {
+    double ecc = 0.3, tilt_rad = 10.0 * deg;
+};
+
+// One line of one run: the system re-observed with that line's error sources, solved, scored (NaN: failed).
+double solve_line(const Scenario& sc, const RunData& data, const LineSpec& ls, const SolveOptions& base, const MatchedPriors& matched) {
+    if (!data.truth) return NAN;
+    try {
+        Scenario s = sc;
+        s.plan.brief_mass_error = ls.masses ? sc.plan.brief_mass_error : 0.0;
+        if (!ls.orbits) s.plan.brief_orbit_error_deg = 0.0;
+        const Truth& truth = *data.truth;
+        const Ephemeris& eph = data.run.ephemeris;
+        const ObservationSet obs = observe_eras(s, truth, eph, data.seed, ls.noise, ls.noise_eras);
+        const Brief brief = make_brief(s, truth, data.seed);
+        const ExerciseInMemory m = exercise_in_memory(s, truth, obs, brief, eph);
+        SolveOptions opt = base;
+        opt.seed = derive_seed(data.seed, "budget-solve");
+        opt.distance = ls.spacing ? DistancePrior::spacing : DistancePrior::free;
+        if (ls.neglect_light_time) opt.model.light_time = LightTime::neglected;
+        if (ls.matched_priors) {
+            opt.eccentricity_prior_sigma = matched.ecc;
+            opt.inclination_prior_rad = matched.tilt_rad;
         }
-    };
-    check_keys(o.only, "--only", false);
-    check_keys(o.combine, "--combine", true);
-    std::vector<std::size_t> chosen;
-    for (std::size_t i = 0; i < specs.size(); ++i)
-        if (specs[i].present && (o.only.empty() || std::find(o.only.begin(), o.only.end(), specs[i].key) != o.only.end())) chosen.push_back(i);
-    for (const LineSpec& s : specs) {
-        if (!o.only.empty() && std::find(o.only.begin(), o.only.end(), s.key) == o.only.end()) continue;
-        BudgetLine l;
-        l.key = s.key;
-        l.label = s.label;
-        l.present = s.present;
-        if (s.present) l.separations_arcmin.assign(static_cast<std::size_t>(o.runs), NAN);
-        b.lines.push_back(l);
+        const Solution sol = solve(m.exercise, opt);
+        return score_prediction(m.exercise.brief, m.key, sol.prediction).separation_arcmin;
+    } catch (const std::exception&) {
+        return NAN;  // counted as failed
     }
-    for (int r = 0; r < o.runs; ++r) b.seeds.push_back(derive_seed(o.seed, "budget", static_cast<std::uint64_t>(r)) >> 11);
+}
 
-    // Tasks run-major, so that a run's system is drawn once and dropped when its lines are done.
-    const std::size_t per_run = chosen.size();
-    const std::size_t tasks = per_run * static_cast<std::size_t>(o.runs);
-    RunCache cache(sc, std::vector<int>(static_cast<std::size_t>(o.runs), static_cast<int>(per_run)));
-    Progress bar(progress_out ? *progress_out : std::cerr, progress_out == nullptr);
-    std::atomic<long> finished{0};
-    std::mutex result_mutex;
-    const double mass_error = sc.plan.brief_mass_error;
-    parallel_for(tasks, o.threads ? o.threads : default_threads(), [&](std::size_t t) {
-        const std::size_t r = t / per_run;
-        const LineSpec& ls = specs[chosen[t % per_run]];
-        struct Release {
-            RunCache& c;
-            std::size_t r;
-            ~Release() { c.release(r); }
-        } release{cache, r};
-        const auto data = cache.get(r, b.seeds[r]);
-        double sep = NAN;
-        if (data->truth) {
-            try {
-                Scenario s = sc;
-                s.plan.brief_mass_error = ls.masses ? mass_error : 0.0;
-                if (!ls.orbits) s.plan.brief_orbit_error_deg = 0.0;
-                const Truth& truth = *data->truth;
-                const Ephemeris& eph = data->run.ephemeris;
-                const ObservationSet obs = observe_eras(s, truth, eph, data->seed, ls.noise, ls.noise_eras);
-                const Brief brief = make_brief(s, truth, data->seed);
-                const ExerciseInMemory m = exercise_in_memory(s, truth, obs, brief, eph);
-                SolveOptions opt = so;
-                opt.seed = derive_seed(data->seed, "budget-solve");
-                opt.distance = ls.spacing ? DistancePrior::spacing : DistancePrior::free;
-                if (ls.neglect_light_time) opt.model.light_time = LightTime::neglected;
-                if (ls.matched_priors) {
-                    opt.eccentricity_prior_sigma = matched_ecc;
-                    opt.inclination_prior_rad = matched_tilt;
-                }
-                const Solution sol = solve(m.exercise, opt);
-                sep = score_prediction(m.exercise.brief, m.key, sol.prediction).separation_arcmin;
-            } catch (const std::exception&) {
-                sep = NAN;  // counted as failed
-            }
-        }
-        {
-            std::lock_guard<std::mutex> lock(result_mutex);
-            for (BudgetLine& l : b.lines)
-                if (l.key == ls.key) l.separations_arcmin[r] = sep;
-        }
-        const long done = ++finished;
-        bar.update("budget solves", static_cast<double>(done) / static_cast<double>(tasks), done, static_cast<long>(tasks));
-    });
-    bar.finish();
-
+// Medians, 90th percentiles, failures, the quadrature sum of the sources and the all-on radii.
+void summarise(BudgetResult& b, const BudgetOptions& o) {
     double q50 = 0.0, q90 = 0.0;
     bool any_source = false;
     for (BudgetLine& l : b.lines) {
@@ -419,96 +365,79 @@ BudgetResult run_budget(const Scenario& base, const BudgetOptions& o, std::ostre
         b.radius90 = quantile(on->separations_arcmin, 0.9);
         b.radius99 = quantile(on->separations_arcmin, 0.99);
     }
-    return b;
 }
 
-namespace {
-std::string cell(double v) {
-    if (!std::isfinite(v)) return "-";
-    return num(v >= 100 ? "%.1f" : v >= 1 ? "%.3f" : "%.2e", v);
-}
-std::string pad_left(const std::string& s, std::size_t w) { return s.size() >= w ? s : std::string(w - s.size(), ' ') + s; }
-std::string pad_right(const std::string& s, std::size_t w) { return s.size() >= w ? s : s + std::string(w - s.size(), ' '); }
 }  // namespace
 
-std::string budget_table(const BudgetResult& b) {
-    constexpr std::size_t kLabel = 58;
-    std::ostringstream t;
-    t << "Error budget of " << b.scenario_name << ": error of the predicted position at " << num("%g", b.epoch_year) << ", over "
-      << b.runs << " system(s)\n";
-    t << "Solve: distance free unless the line says otherwise; " << b.priors << "\n";
-    if (!b.what_if.empty()) t << "What-ifs: " << b.what_if << "\n";
-    t << "\n" << pad_right("source", kLabel) << pad_left("median", 10) << pad_left("90%", 10) << pad_left("failed", 8) << "\n";
-    t << pad_right("", kLabel) << pad_left("(arcmin)", 10) << pad_left("(arcmin)", 10) << "\n";
-    auto row = [&](const BudgetLine& l) {
-        t << (l.label.size() >= kLabel ? l.label + "\n" + std::string(kLabel, ' ') : pad_right(l.label, kLabel));
-        if (!l.present) t << pad_left("not in this scenario", 20) << "\n";
-        else t << pad_left(cell(l.median), 10) << pad_left(cell(l.p90), 10) << pad_left(std::to_string(l.failed), 8) << "\n";
-    };
-    for (const BudgetLine& l : b.lines)
-        if (l.key != "all-on") row(l);
-    if (std::isfinite(b.quadrature_median))
-        t << pad_right(b.combined.empty() ? "quadrature sum of the single sources" : "quadrature sum of the sources combined below", kLabel) << pad_left(cell(b.quadrature_median), 10) << pad_left(cell(b.quadrature_p90), 10) << "\n";
-    if (const BudgetLine* on = b.line("all-on")) row(*on);
-    if (b.combined.empty() && b.line("all-on"))
-        t << "(all sources on: every source above at once, the solve's choices included; --combine picks some)\n";
-    if (std::isfinite(b.radius50))
-        t << "\nSearch radius holding 50% / 90% / 99% of the all-on runs: " << cell(b.radius50) << " / " << cell(b.radius90) << " / "
-          << cell(b.radius99) << " arcmin (the scenario's field radius: " << num("%g", b.field_radius_arcmin) << " arcmin)"
-          << (b.runs < 100 ? "; with fewer than 100 runs the 99% radius is little more than the largest error seen" : "") << "\n";
-    return t.str();
-}
+BudgetResult run_budget(const Scenario& base, const BudgetOptions& o, std::ostream* progress_out) {
+    if (o.runs < 1 || o.runs > 100000) throw InputError("", 0, "--runs", "must be in [1, 100000]");
+    if (o.starts < 1 || o.starts > 64) throw InputError("", 0, "--starts", "must be in [1, 64]");
+    const Scenario sc = apply_what_ifs(base, o);
+    BudgetResult b;
+    b.scenario_name = sc.name;
+    b.epoch_year = sc.plan.search_epochs_year.front();
+    b.field_radius_arcmin = sc.plan.field_radius_deg * 60.0;
+    b.runs = o.runs;
+    b.combined = o.combine;
 
-std::string budget_csv(const BudgetResult& b) {
-    std::ostringstream t;
-    t << "key,label,present,runs,failed,median_arcmin,p90_arcmin\n";
-    auto f = [](double v) { return std::isfinite(v) ? num("%.6g", v) : std::string(); };
-    for (const BudgetLine& l : b.lines)
-        t << l.key << ",\"" << l.label << "\"," << (l.present ? 1 : 0) << "," << (l.present ? b.runs : 0) << "," << l.failed << ","
-          << f(l.median) << "," << f(l.p90) << "\n";
-    t << "quadrature-sum,\"quadrature sum of the single sources\",1," << b.runs << ",0," << f(b.quadrature_median) << "," << f(b.quadrature_p90) << "\n";
-    t << "search-radius-50,\"all-on runs within this radius: 50%\",1," << b.runs << ",0," << f(b.radius50) << ",\n";
-    t << "search-radius-90,\"all-on runs within this radius: 90%\",1," << b.runs << ",0," << f(b.radius90) << ",\n";
-    t << "search-radius-99,\"all-on runs within this radius: 99%\",1," << b.runs << ",0," << f(b.radius99) << ",\n";
-    return t.str();
-}
+    const SolveOptions so = base_solve_options(o, b.epoch_year);
+    const BodySpec* hidden = hidden_spec(sc);
+    MatchedPriors matched;
+    matched.ecc = hidden ? matched_sigma(hidden->e, 0.01, 0.5, 0.3) : 0.3;
+    matched.tilt_rad = (hidden ? matched_sigma(hidden->i_deg, 0.5, 30.0, 10.0) : 10.0) * deg;
+    const bool priors_differ = matched.ecc != so.eccentricity_prior_sigma || matched.tilt_rad != so.inclination_prior_rad;
+    b.priors = "prior sigma " + num("%g", so.eccentricity_prior_sigma) + " on e cos(varpi), e sin(varpi) and " +
+               num("%g", so.inclination_prior_rad / deg) + " deg on the tilt components" +
+               (o.ecc_sigma || o.tilt_sigma_deg ? " (as given)" : " (broad)");
+    const std::string matched_words = num("%g", matched.ecc) + ", " + num("%g", matched.tilt_rad / deg) + " deg";
+    b.what_if = what_if_words(o);
 
-std::string budget_runs_csv(const BudgetResult& b) {
-    std::ostringstream t;
-    t << "key,run,seed,separation_arcmin\n";
-    for (const BudgetLine& l : b.lines)
-        for (std::size_t r = 0; r < l.separations_arcmin.size(); ++r)
-            t << l.key << "," << r << "," << b.seeds[r] << "," << (std::isfinite(l.separations_arcmin[r]) ? num("%.6g", l.separations_arcmin[r]) : "") << "\n";
-    return t.str();
-}
-
-void budget_plot(const BudgetResult& b, const std::string& png_path) {
-    plot::Bars bars;
-    bars.title = "Error budget of " + b.scenario_name + " at " + num("%g", b.epoch_year) + " (" + std::to_string(b.runs) + " systems)";
-    bars.x_label = "error source (each alone)";
-    bars.y_label = "separation at the search epoch (arcmin)";
-    bars.group_labels = {"median", "90th percentile"};
-    bars.values.assign(2, {});
-    bars.log_y = true;
-    bars.width = 1200;
-    auto add = [&](const std::string& label, double med, double p90) {
-        bars.categories.push_back(label);
-        bars.values[0].push_back(med);
-        bars.values[1].push_back(p90);
-    };
-    const std::map<std::string, std::string> short_names = {
-        {"all-off", "all off"}, {"systematic", "systematic"}, {"rounding", "rounding"}, {"outliers", "outliers"},
-        {"distance-prior", "distance prior"}, {"masses", "masses"}, {"orbits", "orbits"}, {"shape-priors", "e, tilt priors"},
-        {"light-time", "light time"}, {"all-on", "all on"}};
-    for (const BudgetLine& l : b.lines) {
-        if (l.key == "all-on" || !l.present) continue;  // sources the scenario does not have get no slot
-        const auto it = short_names.find(l.key);
-        const std::string name = it != short_names.end() ? it->second : l.key.rfind("random:", 0) == 0 ? "noise: " + l.key.substr(7) : l.key;
-        add(name, l.median, l.p90);
+    const std::vector<LineSpec> specs = line_specs(sc, sc.plan.brief_mass_error, priors_differ, matched_words, o.combine);
+    check_keys(specs, o.only, "--only", false);
+    check_keys(specs, o.combine, "--combine", true);
+    auto wanted = [&](const LineSpec& s) { return o.only.empty() || std::find(o.only.begin(), o.only.end(), s.key) != o.only.end(); };
+    std::vector<std::size_t> chosen;
+    for (std::size_t i = 0; i < specs.size(); ++i)
+        if (specs[i].present && wanted(specs[i])) chosen.push_back(i);
+    for (const LineSpec& s : specs) {
+        if (!wanted(s)) continue;
+        BudgetLine l;
+        l.key = s.key;
+        l.label = s.label;
+        l.present = s.present;
+        if (s.present) l.separations_arcmin.assign(static_cast<std::size_t>(o.runs), NAN);
+        b.lines.push_back(l);
     }
-    add("quadrature sum", b.quadrature_median, b.quadrature_p90);
-    if (const BudgetLine* on = b.line("all-on")) add("all on", on->median, on->p90);
-    plot::save_png(bars, png_path);
+    for (int r = 0; r < o.runs; ++r) b.seeds.push_back(derive_seed(o.seed, "budget", static_cast<std::uint64_t>(r)) >> 11);
+
+    // Tasks run-major, so that a run's system is drawn once and dropped when its lines are done.
+    const std::size_t per_run = chosen.size();
+    const std::size_t tasks = per_run * static_cast<std::size_t>(o.runs);
+    RunCache cache(sc, std::vector<int>(static_cast<std::size_t>(o.runs), static_cast<int>(per_run)));
+    Progress bar(progress_out ? *progress_out : std::cerr, progress_out == nullptr);
+    std::atomic<long> finished{0};
+    std::mutex result_mutex;
+    parallel_for(tasks, o.threads ? o.threads : default_threads(), [&](std::size_t t) {
+        const std::size_t r = t / per_run;
+        const LineSpec& ls = specs[chosen[t % per_run]];
+        struct Release {
+            RunCache& c;
+            std::size_t r;
+            ~Release() { c.release(r); }
+        } release{cache, r};
+        const auto data = cache.get(r, b.seeds[r]);
+        const double sep = solve_line(sc, *data, ls, so, matched);
+        {
+            std::lock_guard<std::mutex> lock(result_mutex);
+            for (BudgetLine& l : b.lines)
+                if (l.key == ls.key) l.separations_arcmin[r] = sep;
+        }
+        const long done = ++finished;
+        bar.update("budget solves", static_cast<double>(done) / static_cast<double>(tasks), done, static_cast<long>(tasks));
+    });
+    bar.finish();
+    summarise(b, o);
+    return b;
 }
 
 }  // namespace wayward

@@ -75,9 +75,5 @@ Scenario apply_what_ifs(const Scenario& sc, const BudgetOptions& options);
 // Runs the budget. `progress` gets a bar (may be null).
 BudgetResult run_budget(const Scenario& sc, const BudgetOptions& options, std::ostream* progress = nullptr);
 
-std::string budget_table(const BudgetResult& b);   // for the terminal
-std::string budget_csv(const BudgetResult& b);     // one row per line, then the quadrature sum and the radii
-std::string budget_runs_csv(const BudgetResult& b);// one row per line and run
-void budget_plot(const BudgetResult& b, const std::string& png_path);
 
 }  // namespace wayward

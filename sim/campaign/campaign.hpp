@@ -3,10 +3,10 @@
 // A campaign spec (TOML) names scenarios, a number of seeds, a campaign seed, named solve settings and search
 // epochs. One case = (scenario, seed, settings, epoch). Work is shared: each system (scenario, seed) is generated
 // and observed once, each unit (scenario, seed, settings) is solved once, and the unit's solution is predicted at
-// every epoch from one set of model runs (predict_at_epochs). Each finished unit appends its rows to DIR/cases.csv
+// every epoch from one set of model runs (the predictor, sim/predict). Each finished unit appends its rows to DIR/cases.csv
 // with a single write() call, so a killed run leaves only whole rows and resumes where it stopped; a manifest
 // (DIR/manifest.toml) names the campaign (SHA-256 of the spec and its scenario files) and the shard. Sharding
-// splits the units, `merge` joins the shards. The report: summary.txt and PNG plots (success rate against epoch
+// splits the units, `merge` joins the shards. The report (sim/report/campaign_report): summary.txt and PNG plots (success rate against epoch
 // with bootstrap bands, separations, luck fractions, epoch of closest agreement).
 //
 // Determinism: a system's seed comes from (campaign seed, scenario name, seed number) through derive_seed, and is
@@ -116,15 +116,6 @@ CaseRow parse_case_row(const std::string& line, const std::string& file, long li
 // Reads a whole cases.csv (header checked); rows in file order.
 std::vector<CaseRow> read_case_rows(const std::string& path);
 
-// Predictions of a solved hidden body at several epochs from one set of model runs: the best fit integrated once
-// (position and +- track_years track at every epoch), the hidden-body covariance propagated linearly by finite
-// differences (the same steps as solve), and options.samples draws from that covariance, each integrated once and
-// read at every epoch (the radius holding 90% of them, and their ellipse). The observed planets are those of the
-// known-bodies fit corrected for the solved hidden body by two Gauss-Newton steps (test_campaign compares the
-// result with solve's own prediction). data_centre_year receives the sigma-weighted mean observation time.
-std::vector<Prediction> predict_at_epochs(const Exercise& ex, const Solution& sol, const SolveOptions& options,
-                                          const std::vector<double>& epochs_year, double* data_centre_year = nullptr);
-
 struct CampaignRun {
     std::string out_dir;
     unsigned threads = 0;                      // units solved at once (0: all cores); each solve uses one thread
@@ -132,18 +123,6 @@ struct CampaignRun {
     bool quiet = false;
     const std::atomic<bool>* cancel = nullptr; // set (e.g. by SIGINT): stop soon, keep every finished row
 };
-struct CampaignOutcome {
-    std::size_t shard_cases = 0;   // cases this shard holds
-    std::size_t resumed = 0;       // found finished in cases.csv
-    std::size_t finished = 0;      // finished in this run
-    std::size_t failed = 0;        // rows with status failed (in the whole shard)
-    bool repaired = false;         // a torn last row was cut off
-    bool complete = false;         // every case of the shard is in cases.csv (then sorted, with the report)
-};
-// Checks the output folder (creates it; refuses a folder holding another campaign or shard, or one in use),
-// then runs every unfinished unit of the shard, then sorts cases.csv and writes the report.
-CampaignOutcome run_campaign(const CampaignSpec& spec, const CampaignRun& run, std::ostream& progress);
-
 // manifest.toml of a campaign folder.
 struct CampaignManifest {
     std::string name, id, spec_file, spec_text;
@@ -154,13 +133,30 @@ struct CampaignManifest {
 };
 CampaignManifest load_campaign_manifest(const std::string& dir);
 
-// Joins shard folders of one campaign into `out_dir` (cases.csv sorted, manifest as shard 1/1, report). Refuses
-// (InputError) folders of different campaigns, and lists missing and doubled cases.
-void merge_campaigns(const std::vector<std::string>& dirs, const std::string& out_dir, std::ostream& out);
+struct CampaignOutcome {
+    std::size_t shard_cases = 0;   // cases this shard holds
+    std::size_t resumed = 0;       // found finished in cases.csv
+    std::size_t finished = 0;      // finished in this run
+    std::size_t failed = 0;        // rows with status failed (in the whole shard)
+    bool repaired = false;         // a torn last row was cut off
+    bool complete = false;         // every case of the shard is in cases.csv (then sorted)
+    std::vector<CaseRow> rows;     // when complete: every row of the shard, sorted by case (for the report)
+    CampaignManifest manifest;     // of the folder
+};
+// Checks the output folder (creates it; refuses a folder holding another campaign or shard, or one in use),
+// then runs every unfinished unit of the shard, then sorts cases.csv. The report (sim/report/campaign_report)
+// is the caller's to write.
+CampaignOutcome run_campaign(const CampaignSpec& spec, const CampaignRun& run, std::ostream& progress);
 
-// summary.txt, success_vs_epoch.png, separations.png, luck_fraction.png, closest_agreement.png in `dir`.
-// Returns the summary text.
-std::string write_campaign_report(const std::vector<CaseRow>& rows, const CampaignManifest& manifest, const std::string& dir);
+
+// Joins shard folders of one campaign into `out_dir` (cases.csv sorted, manifest as shard 1/1). Refuses
+// (InputError) folders of different campaigns, and lists missing and doubled cases. Returns every row, sorted
+// by case, and the merged manifest (for the report).
+struct MergedCampaign {
+    std::vector<CaseRow> rows;
+    CampaignManifest manifest;
+};
+MergedCampaign merge_campaigns(const std::vector<std::string>& dirs, const std::string& out_dir, std::ostream& out);
 
 // Caps this process's address space (setrlimit RLIMIT_AS) at what is mapped now plus `gigabytes`, or by default
 // plus 1 GB + 0.5 GB per thread (at most 80% of physical memory), so that one model run that goes astray fails its

@@ -1,6 +1,7 @@
 // The `wayward` command-line tool: parses arguments and calls the sim library. No physics lives here.
 #include <cstdio>
 #include <iostream>
+#include <new>
 #include <sstream>
 
 #include <CLI/CLI.hpp>
@@ -25,9 +26,9 @@ int main(int argc, char** argv) {
     NewArgs nw;
     auto* c_new = app.add_subcommand("new", "make an exercise folder from a scenario: observations, brief, sealed answer key");
     c_new->add_option("scenario", nw.scenario, "scenario file (TOML)")->required();
-    c_new->add_option("--seed", nw.seed, "seed of the invented system and its observations")->capture_default_str();
+    c_new->add_option("--seed", nw.seed, "seed of the invented system and its observations (default: a secret random one, kept only in the answer key)");
     c_new->add_option("--out", nw.out_dir, "exercise folder to write")->required();
-    c_new->add_option("--key-out", nw.key_dir, "folder for the answer key (default OUT/answer-key)");
+    c_new->add_option("--key-out", nw.key_dir, "folder for the answer key (default OUT-answer-key beside OUT; keep it from the trainee)");
     c_new->add_flag("--force", nw.force, "overwrite an existing exercise");
 
     ResidualsArgs res;
@@ -55,7 +56,7 @@ int main(int argc, char** argv) {
     auto* c_score = app.add_subcommand("score", "check the answer key, then score a prediction: separation, hit, luck curve");
     c_score->add_option("exercise", scr.dir, "exercise folder")->required();
     c_score->add_option("--solution", scr.solution, "solution file (default EXERCISE/solution.toml)");
-    c_score->add_option("--key", scr.key, "answer key (default EXERCISE/answer-key/answer_key.toml)");
+    c_score->add_option("--key", scr.key, "answer key (default EXERCISE-answer-key/answer_key.toml beside the exercise)");
     c_score->add_option("--lon", scr.lon_deg, "your predicted longitude (deg)");
     c_score->add_option("--lat", scr.lat_deg, "your predicted latitude (deg)");
     c_score->add_option("--epoch", scr.epoch_year, "the year of your prediction");
@@ -109,6 +110,11 @@ int main(int argc, char** argv) {
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {
+        // CLI11 reports an unknown first word as a missing subcommand; say what was wrong instead.
+        if (dynamic_cast<const CLI::RequiredError*>(&e) && argc > 1 && argv[1][0] != '-' && app.get_subcommands().empty()) {
+            std::cerr << "wayward: unknown command '" << argv[1] << "' (commands: ephemeris, new, residuals, solve, score, campaign, merge, budget; see --help)\n";
+            return 2;
+        }
         const int rc = app.exit(e);
         return rc == 0 ? 0 : 2;
     }
@@ -124,10 +130,13 @@ int main(int argc, char** argv) {
         if (c_budget->parsed()) return run_budget_command(bud, std::cout, std::cerr);
     } catch (const InputError& e) {
         std::cerr << "wayward: " << e.what() << "\n";
-        return 2;
+        return 2;  // bad input (README: Exit status)
+    } catch (const std::bad_alloc&) {
+        std::cerr << "wayward: error: out of memory (the computation needed more than the machine or --max-memory allows)\n";
+        return 3;
     } catch (const std::exception& e) {
         std::cerr << "wayward: error: " << e.what() << "\n";
-        return 2;
+        return 3;  // a computation or system failure, not the input's fault
     }
     return 0;
 }

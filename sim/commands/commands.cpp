@@ -4,6 +4,7 @@
 #include <cmath>
 #include <filesystem>
 #include <iomanip>
+#include <limits>
 #include <map>
 #include <sstream>
 
@@ -12,6 +13,7 @@
 #include "sim/truth/exercise_writer.hpp"
 #include "sim/io/fileio.hpp"
 #include "sim/fit/known_fit.hpp"
+#include "sim/report/luck_report.hpp"
 #include "sim/report/report.hpp"
 #include "sim/truth/generate.hpp"
 #include "sim/physics/geometry.hpp"
@@ -66,17 +68,22 @@ int run_new(const NewArgs& args, std::ostream& out) {
     if (!sc.plan.present) throw InputError(sc.file, 0, "observing", "the scenario has no [observing] plan, so there is nothing to observe");
     if (args.out_dir.empty()) throw InputError("", 0, "--out", "is required");
     const ExercisePaths paths = exercise_paths(args.out_dir, args.key_dir);
+    refuse_link_at(paths.brief(), "--out");
     if (std::filesystem::exists(paths.brief()) && !args.force)
         throw InputError(paths.dir, 0, "--out", "an exercise already exists here; use --force to overwrite it");
+    if (args.seed && *args.seed > static_cast<std::uint64_t>(std::numeric_limits<std::int64_t>::max()))
+        throw InputError("", 0, "--seed", "must be in [0, 2^63 - 1]");
+    const std::uint64_t seed = args.seed ? *args.seed : secret_seed();
     IntegrationResult run;
-    const Truth truth = generate(sc, args.seed, &run);
-    const ObservationSet obs = observe(sc, truth, run.ephemeris, args.seed);
-    const Brief brief = make_brief(sc, truth, args.seed);
+    const Truth truth = generate(sc, seed, &run);
+    const ObservationSet obs = observe(sc, truth, run.ephemeris, seed);
+    const Brief brief = make_brief(sc, truth, seed);
     write_exercise(paths, sc, truth, obs, brief, run.ephemeris, args.force);
 
     out << std::defaultfloat << std::setprecision(6);
     out << "Exercise written to " << paths.dir << " (answer key sealed in " << paths.key_dir << ")\n";
-    out << "Scenario: " << sc.name << ", seed " << args.seed << (truth.draws > 1 ? ", accepted on draw " + std::to_string(truth.draws) : "") << "\n";
+    out << "Scenario: " << sc.name << (args.seed ? ", seed " + std::to_string(seed) : std::string(", a secret random seed (in the answer key)"))
+        << (truth.draws > 1 ? ", accepted on draw " + std::to_string(truth.draws) : "") << "\n";
     out << "Span: " << sc.epoch0_year << " to " << sc.epoch0_year + sc.span_years << " (" << sc.span_years << " years)\n";
     out << "Star: " << truth.system.bodies[0].name << ", " << truth.star_mass << (truth.star_mass == 1.0 ? " solar mass\n" : " solar masses\n");
     out << "Known planets:\n";
@@ -84,7 +91,8 @@ int run_new(const NewArgs& args, std::ostream& out) {
         out << "  " << std::left << std::setw(12) << p.name << " a = " << std::setprecision(4) << p.elements.semi_major_axis
             << " au, mass " << std::setprecision(3) << p.mass << (p.observer ? "  (observer)" : p.observed ? "  (observed)" : "") << "\n";
     out << std::setprecision(6);
-    out << "A hidden body is in the system; its orbit and mass are in the sealed answer key.\n";
+    out << (truth.hidden_index() ? "A hidden body is in the system; its orbit and mass are in the sealed answer key.\n"
+                                 : "No hidden body: the scenario has none, so this is a control exercise.\n");
     std::map<std::string, std::size_t> per_era;
     for (const Observation& o : obs.records) ++per_era[o.era];
     out << "Eras:\n";
@@ -106,6 +114,7 @@ namespace wayward {
 
 int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& progress) {
     const Exercise ex = load_exercise(args.dir);
+    for (const char* f : {"/residuals.csv", "/residuals.png"}) refuse_link_at(args.dir + f);  // before the work, not after
     ModelOptions mo;
     if (args.neglect_light_time) mo.light_time = LightTime::neglected;
     const KnownFit fit = fit_known(ex, mo, [&](const std::string& line) {
@@ -130,61 +139,53 @@ int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& pr
 
 namespace wayward {
 
+namespace {
+
+// The solver names its options by their library fields; the user typed flags.
+InputError as_flag_error(const InputError& e) {
+    static const std::map<std::string, std::string> flags = {
+        {"distance", "--distance"}, {"ecc_sigma", "--ecc-sigma"}, {"tilt_sigma_deg", "--tilt-sigma"},
+        {"samples", "--samples"},   {"starts", "--starts"},       {"epoch_year", "--epoch"}};
+    const auto it = flags.find(e.field());
+    if (!e.file().empty() || it == flags.end()) return e;
+    return InputError("", 0, it->second, e.message());
+}
+
+}  // namespace
+
 SolveOptions solve_options(const SolveArgs& a) {
     SolveOptions o;
-    const std::string& d = a.distance;
-    auto number = [&](const std::string& text) {
-        char* end = nullptr;
-        const double v = std::strtod(text.c_str(), &end);
-        if (text.empty() || *end != '\0' || !std::isfinite(v))
-            throw InputError("", 0, "--distance", "\"" + text + "\" is not a number (use free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION])");
-        return v;
-    };
-    if (d == "free") {
-        o.distance = DistancePrior::free;
-    } else if (d.rfind("fixed:", 0) == 0) {
-        o.distance = DistancePrior::fixed;
-        o.distance_au = number(d.substr(6));
-        if (!(o.distance_au > 0)) throw InputError("", 0, "--distance", "a fixed distance must be positive");
-    } else if (d.rfind("gauss:", 0) == 0) {
-        o.distance = DistancePrior::gaussian;
-        const std::string rest = d.substr(6);
-        const auto comma = rest.find(',');
-        if (comma == std::string::npos) throw InputError("", 0, "--distance", "gauss needs a mean and a sigma: gauss:A,SIGMA");
-        o.distance_au = number(rest.substr(0, comma));
-        o.distance_sigma_au = number(rest.substr(comma + 1));
-        if (!(o.distance_au > 0 && o.distance_sigma_au > 0)) throw InputError("", 0, "--distance", "mean and sigma must be positive");
-    } else if (d == "spacing" || d.rfind("spacing:", 0) == 0) {
-        o.distance = DistancePrior::spacing;
-        if (d.size() > 8) o.spacing_sigma_fraction = number(d.substr(8));
-        if (!(o.spacing_sigma_fraction > 0 && o.spacing_sigma_fraction < 1))
-            throw InputError("", 0, "--distance", "the spacing prior's sigma fraction must be in (0, 1)");
-    } else {
-        throw InputError("", 0, "--distance", "unknown prior \"" + d + "\" (use free, fixed:A, gauss:A,SIGMA or spacing[:FRACTION])");
-    }
     o.circular = a.circular;
     o.coplanar = a.coplanar;
-    if (!(a.ecc_sigma > 0 && a.ecc_sigma < 1)) throw InputError("", 0, "--ecc-sigma", "must be in (0, 1)");
-    if (!(a.tilt_sigma_deg > 0 && a.tilt_sigma_deg < 90)) throw InputError("", 0, "--tilt-sigma", "must be in (0, 90) degrees");
     o.eccentricity_prior_sigma = a.ecc_sigma;
     o.inclination_prior_rad = a.tilt_sigma_deg * deg;
     o.epoch_year = a.epoch_year;
-    if (a.samples < 20 || a.samples > 100000) throw InputError("", 0, "--samples", "must be in [20, 100000]");
-    if (a.starts < 1 || a.starts > 64) throw InputError("", 0, "--starts", "must be in [1, 64]");
     o.samples = a.samples;
     o.starts = a.starts;
     o.threads = a.threads;
     if (a.neglect_light_time) o.model.light_time = LightTime::neglected;
+    try {
+        set_distance_prior(o, a.distance);  // validates every option
+    } catch (const InputError& e) {
+        throw as_flag_error(e);
+    }
+    if (o.samples == 0) throw InputError("", 0, "--samples", "must be in [20, 100000]");
     return o;
 }
 
 int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_out) {
     const SolveOptions o = solve_options(args);
     const Exercise ex = load_exercise(args.dir);
+    refuse_link_at(args.dir + "/solution.toml");  // before the work, not after
     Progress bar(progress_out, args.quiet);
     SolveProgress sp;
     sp.report = [&](const std::string& stage, double f) { bar.update(stage, f); };
-    const Solution s = solve(ex, o, sp);
+    Solution s;
+    try {
+        s = solve(ex, o, sp);
+    } catch (const InputError& e) {
+        throw as_flag_error(e);
+    }
     bar.finish();
     write_file_atomic(args.dir + "/solution.toml", solution_toml(s));
 
@@ -217,6 +218,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
 }
 
 int run_score(const ScoreArgs& args, std::ostream& out) {
+    if (!(args.window_years > 0.0 && args.window_years <= 5000.0)) throw InputError("", 0, "--window", "must be in (0, 5000] years");
     const Exercise ex = load_exercise(args.dir);
     Prediction p;
     std::string source;
@@ -224,7 +226,9 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
     if (own) {
         if (!(args.lon_deg && args.lat_deg && args.epoch_year))
             throw InputError("", 0, "--lon", "a prediction of your own needs --lon, --lat and --epoch together");
+        if (!std::isfinite(*args.lon_deg)) throw InputError("", 0, "--lon", "must be a finite number of degrees");
         if (!(*args.lat_deg >= -90 && *args.lat_deg <= 90)) throw InputError("", 0, "--lat", "must be in [-90, 90]");
+        if (!std::isfinite(*args.epoch_year)) throw InputError("", 0, "--epoch", "must be a finite year");
         p.lon = wrap_two_pi(*args.lon_deg * deg);
         p.lat = *args.lat_deg * deg;
         p.epoch_year = *args.epoch_year;
@@ -243,15 +247,17 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
         if (!std::filesystem::exists(path)) throw InputError(path, 0, "", "no solution here: run `wayward solve " + args.dir + "` first, or give --lon --lat --epoch");
         const Solution s = load_solution(path);
         if (s.exercise_sha256 != ex.brief.answer_key_sha256)
-            throw InputError(path, 0, "solution.exercise_sha256", "this solution belongs to another exercise");
+            throw InputError(path, 0, "solution.exercise_sha256",
+                             "does not match " + ex.brief.file + "'s answer_key_sha256: this solution belongs to another exercise, or the brief was changed");
         p = s.prediction;
         source = path;
     }
-    const std::string key_path = args.key.empty() ? exercise_paths(args.dir).answer_key() : args.key;
+    const std::string key_path = args.key.empty() ? find_answer_key(args.dir) : args.key;
     const AnswerKey key = open_answer_key(ex.brief, key_path);
     const Score sc = score_prediction(ex.brief, key, p, args.window_years);
     // A prediction of the trainee's own gets files of its own, so it never overwrites the solver's luck curve.
     const std::string stem = (own || !args.prediction_file.empty()) ? "luck_own" : "luck";
+    for (const char* ext : {".csv", ".png"}) refuse_link_at(args.dir + "/" + stem + ext);
     write_luck(sc, args.dir + "/" + stem + ".csv", args.dir + "/" + stem + ".png", "Luck of the epoch: " + ex.brief.scenario_name);
 
     out << std::fixed << std::setprecision(3);
@@ -277,6 +283,8 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
 
 #include "sim/budget/budget.hpp"
 #include "sim/campaign/campaign.hpp"
+#include "sim/report/budget_report.hpp"
+#include "sim/report/campaign_report.hpp"
 
 namespace wayward {
 
@@ -317,7 +325,7 @@ int run_campaign_command(const CampaignArgs& args, std::ostream& out, std::ostre
                  << " are in " << args.out_dir << "/cases.csv; run the same command again to finish the rest.\n";
         return 130;
     }
-    out << detail::read_text_file(args.out_dir + "/summary.txt");
+    out << write_campaign_report(o.rows, o.manifest, args.out_dir);
     out << "Wrote " << args.out_dir << "/cases.csv (" << o.shard_cases << " cases, " << o.resumed << " from an earlier run), summary.txt, "
         << "success_vs_epoch.png, separations.png, luck_fraction.png, closest_agreement.png\n";
     return 0;
@@ -325,7 +333,9 @@ int run_campaign_command(const CampaignArgs& args, std::ostream& out, std::ostre
 
 int run_merge(const MergeArgs& args, std::ostream& out) {
     if (args.out_dir.empty()) throw InputError("", 0, "--out", "is required");
-    merge_campaigns(args.dirs, args.out_dir, out);
+    const MergedCampaign m = merge_campaigns(args.dirs, args.out_dir, out);
+    out << write_campaign_report(m.rows, m.manifest, args.out_dir);
+    out << "Wrote " << args.out_dir << "/cases.csv, summary.txt and the plots\n";
     return 0;
 }
 

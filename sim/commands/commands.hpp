@@ -22,9 +22,9 @@ int run_ephemeris(const EphemerisArgs& args, std::ostream& out);
 
 struct NewArgs {
     std::string scenario;
-    std::uint64_t seed = 1;
+    std::optional<std::uint64_t> seed;  // none: a secret random seed, written only into the answer key
     std::string out_dir;
-    std::string key_dir;  // default: OUT/answer-key
+    std::string key_dir;  // default: OUT-answer-key beside OUT
     bool force = false;
 };
 // Makes an exercise folder and prints its summary.
@@ -58,7 +58,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress);
 struct ScoreArgs {
     std::string dir;
     std::string solution;             // default DIR/solution.toml
-    std::string key;                  // default DIR/answer-key/answer_key.toml
+    std::string key;                  // default DIR-answer-key/answer_key.toml beside DIR
     std::optional<double> lon_deg, lat_deg, epoch_year;  // a trainee's own prediction
     std::string prediction_file;      // or a small TOML file with lon_deg, lat_deg, epoch_year
     double window_years = 60.0;

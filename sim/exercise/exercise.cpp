@@ -7,6 +7,7 @@
 #include <cstdio>
 #include <filesystem>
 #include <sstream>
+#include <tuple>
 
 #include <toml++/toml.h>
 
@@ -29,8 +30,18 @@ std::size_t Brief::observer_index() const {
     throw InputError(file, 0, "planet", "the brief names no observer");
 }
 
+std::string default_key_dir(const std::string& dir) {
+    // Beside the exercise, never inside it: the folder handed to a trainee must not carry the truth.
+    fs::path p = fs::path(dir).lexically_normal();
+    if (!p.has_filename()) p = p.parent_path();  // "ex/" -> "ex"
+    if (p.empty() || p.filename() == "." || p.filename() == "..") p = fs::absolute(p).lexically_normal();
+    if (!p.has_filename()) p = p.parent_path();
+    if (!p.has_filename()) return "wayward-answer-key";  // the root folder: beside it is nowhere; use the working folder
+    return (p.parent_path() / (p.filename().string() + "-answer-key")).string();
+}
+
 ExercisePaths exercise_paths(const std::string& dir, const std::string& key_dir) {
-    return {dir, key_dir.empty() ? dir + "/answer-key" : key_dir};
+    return {dir, key_dir.empty() ? default_key_dir(dir) : key_dir};
 }
 
 using detail::fmt;
@@ -64,7 +75,7 @@ std::string toml_text(const toml::table& t) {
 Elements read_elements(TableReader& r) {
     Elements el;
     el.semi_major_axis = r.required_number("a");
-    if (!(el.semi_major_axis > 0.0)) r.fail("a", "must be positive");
+    if (!(el.semi_major_axis > 0.0 && el.semi_major_axis <= 1e5)) r.fail("a", "must be in (0, 1e5] au");
     el.eccentricity = r.required_number("e");
     if (!(el.eccentricity >= 0.0 && el.eccentricity < 1.0)) r.fail("e", "must be in [0, 1)");
     el.inclination = r.required_number("i_deg") * deg;
@@ -85,7 +96,6 @@ std::string format_brief(const Brief& b) {
     toml::table root;
     toml::table ex;
     ex.insert("scenario", b.scenario_name);
-    ex.insert("seed", static_cast<int64_t>(b.seed));
     ex.insert("epoch0_year", b.epoch0_year);
     ex.insert("span_years", b.span_years);
     ex.insert("answer_key_sha256", b.answer_key_sha256);
@@ -154,6 +164,8 @@ std::vector<ObserverFix> parse_observer_csv(const std::string& text, const std::
     while (std::getline(in, line)) {
         ++row;
         if (!line.empty() && line.back() == '\r') line.pop_back();
+        // A UTF-8 byte-order mark (some spreadsheet programs write one) is not part of the header.
+        if (row == 1 && line.rfind("\xEF\xBB\xBF", 0) == 0) line.erase(0, 3);
         if (row == 1) {
             if (line != "time_days,x_au,y_au,z_au") throw InputError(file, 1, "header", "expected the header \"time_days,x_au,y_au,z_au\"");
             continue;
@@ -185,6 +197,8 @@ std::vector<Observation> parse_observations_csv(const std::string& text, const s
     while (std::getline(in, line)) {
         ++row;
         if (!line.empty() && line.back() == '\r') line.pop_back();
+        // A UTF-8 byte-order mark (some spreadsheet programs write one) is not part of the header.
+        if (row == 1 && line.rfind("\xEF\xBB\xBF", 0) == 0) line.erase(0, 3);
         if (row == 1) {
             if (line != header) throw InputError(file, 1, "header", "expected the header \"" + header + "\"");
             continue;
@@ -217,17 +231,37 @@ std::vector<Observation> parse_observations_csv(const std::string& text, const s
         o.sigma_lat_arcsec = number(6, true);
         for (std::size_t c : {std::size_t{5}, std::size_t{6}}) {
             const auto& s = c == 5 ? o.sigma_lon_arcsec : o.sigma_lat_arcsec;
-            if (s && !(*s > 0.0)) throw InputError(file, row, names[c], "must be positive");
+            // Below a micro-arcsecond the weight 1/sigma^2 overflows; no record is that good.
+            if (s && !(*s >= 1e-6 && *s <= 1e6)) throw InputError(file, row, names[c], "must be in [1e-6, 1e6] arcsec");
         }
         o.era = cells[7];
+        if (!o.era.empty() && !detail::name_problem(o.era).empty())
+            throw InputError(file, row, "era", detail::name_problem(o.era));
+        o.line = row;
         out.push_back(std::move(o));
     }
     if (row == 0) throw InputError(file, 1, "header", "the file is empty");
+    if (out.empty()) throw InputError(file, 2, "row", "the log holds no observations");
+    // The same target recorded twice at the same time is a copied row, not a second measurement.
+    std::vector<std::size_t> order(out.size());
+    for (std::size_t k = 0; k < order.size(); ++k) order[k] = k;
+    std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+        return std::tie(out[a].target, out[a].time_days, out[a].line) < std::tie(out[b].target, out[b].time_days, out[b].line);
+    });
+    for (std::size_t k = 1; k < order.size(); ++k) {
+        const Observation& a = out[order[k - 1]];
+        const Observation& b = out[order[k]];
+        if (a.target == b.target && a.time_days == b.time_days)
+            throw InputError(file, b.line, "time_days", "a second observation of " + b.target + " at the same time (line " +
+                                                            std::to_string(a.line) + "): a duplicated row?");
+    }
     return out;
 }
 
-Brief load_brief(const std::string& path) {
-    const toml::table root_t = detail::parse_toml(detail::read_text_file(path), path);
+Brief load_brief(const std::string& path) { return parse_brief(detail::read_text_file(path), path); }
+
+Brief parse_brief(const std::string& text, const std::string& path) {
+    const toml::table root_t = detail::parse_toml(text, path);
     TableReader root(root_t, path, "");
     Brief b;
     b.file = path;
@@ -236,9 +270,13 @@ Brief load_brief(const std::string& path) {
     {
         TableReader r(*ex, path, "exercise");
         b.scenario_name = r.required_string("scenario");
-        b.seed = static_cast<std::uint64_t>(r.integer("seed").value_or(0));
+        // Briefs written before the seal carried the seed; it is read past, never kept (the brief must not hold
+        // what regenerates the truth).
+        r.integer("seed");
         b.epoch0_year = r.required_number("epoch0_year");
+        if (!(std::abs(b.epoch0_year) <= 1e6)) r.fail("epoch0_year", "must be a year within a million years of 0");
         b.span_years = r.required_number("span_years");
+        if (!(b.span_years > 0.0 && b.span_years <= 5000.0)) r.fail("span_years", "must be in (0, 5000] years");
         b.answer_key_sha256 = r.required_string("answer_key_sha256");
         r.finish();
     }
@@ -255,11 +293,11 @@ Brief load_brief(const std::string& path) {
     for (std::size_t k = 0; k < planets.size(); ++k) {
         TableReader r(*planets[k], path, "planet[" + std::to_string(k + 1) + "]");
         BriefPlanet p;
-        p.name = r.required_string("name");
+        p.name = r.required_name("name");
         p.observer = r.boolean("observer").value_or(false);
         p.observed = r.boolean("observed").value_or(false);
         p.mass = r.required_number("mass");
-        if (!(p.mass > 0.0)) r.fail("mass", "must be positive");
+        if (!(p.mass > 0.0 && p.mass < 0.1)) r.fail("mass", "must be positive and below 0.1 solar masses");
         p.elements = read_elements(r);
         r.finish();
         b.planets.push_back(p);
@@ -271,16 +309,19 @@ Brief load_brief(const std::string& path) {
         b.elongation_limit_deg = r.required_number("elongation_limit_deg");
         b.search_epochs_year = r.numbers("search_epochs_year").value_or(std::vector<double>{});
         if (b.search_epochs_year.empty()) r.fail("search_epochs_year", "is required");
+        for (double y : b.search_epochs_year)
+            if (!(y >= b.epoch0_year && y <= b.epoch0_year + b.span_years))
+                r.fail("search_epochs_year", "must lie within the exercise's span");
         b.field_radius_deg = r.required_number("field_radius_deg");
-        if (!(b.field_radius_deg > 0.0)) r.fail("field_radius_deg", "must be positive");
+        if (!(b.field_radius_deg > 0.0 && b.field_radius_deg <= 90.0)) r.fail("field_radius_deg", "must be in (0, 90] degrees");
         const auto eras = r.tables("era");
         for (std::size_t k = 0; k < eras.size(); ++k) {
             TableReader e(*eras[k], path, "observing.era[" + std::to_string(k + 1) + "]");
             BriefEra era;
-            era.label = e.required_string("label");
+            era.label = e.required_name("label");
             era.start_year = e.required_number("start_year");
             era.end_year = e.required_number("end_year");
-            era.per_season = static_cast<int>(e.integer("per_season").value_or(1));
+            era.per_season = static_cast<int>(e.integer_in("per_season", 1, 1000).value_or(1));
             era.precision_arcsec = e.number_or("precision_arcsec", 0.0);
             era.records_sigma = e.boolean("records_sigma").value_or(true);
             e.finish();
@@ -308,13 +349,23 @@ Exercise load_exercise(const std::string& dir) {
     ex.brief = load_brief(p.brief());
     ex.observations = parse_observations_csv(detail::read_text_file(p.observations()), p.observations());
     ex.observer_track = parse_observer_csv(detail::read_text_file(p.observer_track()), p.observer_track());
-    // Every target must be a known planet of the brief, and not the observer.
-    for (std::size_t k = 0; k < ex.observations.size(); ++k) {
-        const std::string& t = ex.observations[k].target;
+    // Every target must be a known planet of the brief, and not the observer; every time inside the brief's span
+    // (a time far outside would make the model integrate, and allocate, for centuries that are not there).
+    const double span_days = ex.brief.span_years * julian_year_days;
+    for (const Observation& o : ex.observations) {
+        const std::string& t = o.target;
         bool ok = false;
         for (const BriefPlanet& bp : ex.brief.planets) ok |= bp.name == t && !bp.observer;
-        if (!ok) throw InputError(p.observations(), static_cast<long>(k + 2), "target", "\"" + t + "\" is not a known planet of the brief");
+        if (!ok) throw InputError(p.observations(), o.line, "target", "\"" + t + "\" is not a known planet of the brief");
+        if (!(o.time_days >= 0.0 && o.time_days <= span_days))
+            throw InputError(p.observations(), o.line, "time_days",
+                             fmt("%.8g", o.time_days) + " is outside the brief's span [0, " + fmt("%.8g", span_days) + "] days (" +
+                                 p.brief() + ": span_years)");
     }
+    for (const ObserverFix& f : ex.observer_track)
+        if (!(f.time_days >= 0.0 && f.time_days <= span_days))
+            throw InputError(p.observer_track(), 0, "time_days",
+                             fmt("%.8g", f.time_days) + " is outside the brief's span [0, " + fmt("%.8g", span_days) + "] days");
     return ex;
 }
 

@@ -23,6 +23,7 @@ struct Observation {
     std::optional<double> sigma_lon_arcsec;  // in lambda*cos(beta); absent when the era does not record it
     std::optional<double> sigma_lat_arcsec;
     std::string era;                          // era label ("early sighting" for sparse early ones)
+    long line = 0;                            // row in observations.csv it was read from (0: not read from a file)
 };
 
 struct BriefPlanet {
@@ -44,7 +45,6 @@ struct BriefEra {
 struct Brief {
     std::string file;             // where it was read from
     std::string scenario_name;
-    std::uint64_t seed = 0;
     double epoch0_year = 0.0;
     double span_years = 0.0;
     std::string star_name;
@@ -76,13 +76,15 @@ struct Exercise {
 
 struct ExercisePaths {
     std::string dir;
-    std::string key_dir;  // default dir + "/answer-key"
+    std::string key_dir;  // default: default_key_dir(dir), beside the exercise folder
     std::string brief() const { return dir + "/brief.toml"; }
     std::string observations() const { return dir + "/observations.csv"; }
     std::string observer_track() const { return dir + "/observer.csv"; }
     std::string answer_key() const { return key_dir + "/answer_key.toml"; }
     std::string true_positions() const { return key_dir + "/true_positions.csv"; }
 };
+// The answer key's default folder: DIR-answer-key beside DIR (never inside the folder a trainee receives).
+std::string default_key_dir(const std::string& dir);
 ExercisePaths exercise_paths(const std::string& dir, const std::string& key_dir = "");
 
 std::string format_observations_csv(const std::vector<Observation>& obs, double epoch0_year);
@@ -90,6 +92,8 @@ std::vector<Observation> parse_observations_csv(const std::string& text, const s
 std::string format_observer_csv(const std::vector<ObserverFix>& track);
 std::vector<ObserverFix> parse_observer_csv(const std::string& text, const std::string& file);
 Brief load_brief(const std::string& path);
+// The brief from its text (`path` names it in errors).
+Brief parse_brief(const std::string& text, const std::string& path);
 // brief.toml's text (the folder writer in truth/ and the importers write it).
 std::string format_brief(const Brief& brief);
 // Reads brief and observations only: the answer key stays sealed.

@@ -158,7 +158,7 @@ KnownFit fit_known(const Exercise& ex, const ModelOptions& options, const std::f
     LeastSquaresResult lm;
     for (int round = 0; round < 8; ++round) {
         lm = levenberg_marquardt(prob, x, 30);
-        if (lm.evaluations == 0 || !std::isfinite(lm.chi2)) throw std::runtime_error("the known-bodies model could not be evaluated");
+        if (!lm.evaluated || !std::isfinite(lm.chi2)) throw std::runtime_error("the known-bodies model could not be evaluated");
         x = lm.x;
         unpack_planets(setup, reference, x, fit.state);
         const ModelRun run = run_model(setup, fit.state, setup.t_end);

@@ -36,8 +36,10 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen
     ++res.evaluations;
     if (!p.evaluate(res.x, r)) return res;
     res.chi2 = r.squaredNorm();
+    res.evaluated = true;
     Eigen::MatrixXd J;
     if (!finite_difference_jacobian(p, res.x, r, J, res.evaluations)) return res;
+    res.outcome = FitOutcome::iteration_limit;
     // Steps solve the damped problem [J; sqrt(lambda D)] delta = [-r; 0] by column-pivoted QR rather than by
     // the normal equations, whose condition number is the square of J's (long arcs make J ill-conditioned).
     // D = diag(J^T J) (Marquardt's scaling); lambda follows Nielsen's (1999) update (see below).
@@ -52,14 +54,20 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen
     const auto n = static_cast<Eigen::Index>(p.parameters);
     const Eigen::Index m = J.rows();
     for (res.iterations = 0; res.iterations < max_iterations; ++res.iterations) {
-        if (cancelled && cancelled()) break;
+        if (cancelled && cancelled()) {
+            res.outcome = FitOutcome::cancelled;
+            break;
+        }
         Eigen::MatrixXd aug(m + n, n);
         aug.topRows(m) = J;
         aug.bottomRows(n) = (lambda * D).cwiseSqrt().asDiagonal();
         Eigen::VectorXd rhs = Eigen::VectorXd::Zero(m + n);
         rhs.head(m) = -r;
         const Eigen::VectorXd delta = aug.colPivHouseholderQr().solve(rhs);
-        if (!delta.allFinite()) break;
+        if (!delta.allFinite()) {
+            res.outcome = FitOutcome::model_failed;
+            break;
+        }
         const Eigen::VectorXd x_new = res.x + delta;
         Eigen::VectorXd r_new;
         ++res.evaluations;
@@ -67,7 +75,7 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen
         const double chi2_new = ok ? r_new.squaredNorm() : INFINITY;
         const double predicted = res.chi2 - (r + J * delta).squaredNorm();
         if (predicted >= 0.0 && predicted < 1e-8 * res.chi2 + 1e-4 && lambda < 1e-3) {
-            res.converged = true;  // the linearised model promises nothing more: a minimum to working precision
+            res.outcome = FitOutcome::converged;  // the linearised model promises nothing more: a minimum to working precision
             break;
         }
         if (ok && chi2_new < res.chi2) {
@@ -83,10 +91,13 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen
             double step_size = 0.0;
             for (Eigen::Index j = 0; j < n; ++j) step_size = std::max(step_size, std::abs(delta[j] / p.step[j]));
             const bool small = gain < 1e-7 * res.chi2 + 1e-10 || step_size < 1e-3;
-            if (!finite_difference_jacobian(p, res.x, r, J, res.evaluations)) break;
+            if (!finite_difference_jacobian(p, res.x, r, J, res.evaluations)) {
+                res.outcome = FitOutcome::model_failed;
+                break;
+            }
             D = D.cwiseMax(diag_of(J));
             if (small) {
-                res.converged = true;
+                res.outcome = FitOutcome::converged;
                 ++res.iterations;
                 break;
             }
@@ -94,7 +105,7 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen
             lambda *= nu;
             nu *= 2.0;
             if (lambda > 1e16) {
-                res.converged = true;  // no further descent possible: at a minimum to working precision
+                res.outcome = FitOutcome::converged;  // no further descent possible: at a minimum to working precision
                 break;
             }
         }

@@ -18,13 +18,19 @@ struct LeastSquaresProblem {
     Eigen::VectorXd step;   // finite-difference step per parameter
 };
 
+// How a fit ended. model_failed: the model could not be evaluated at some point (if `evaluated`, x and chi2 are
+// the last point where it could); cancelled: the caller asked it to stop.
+enum class FitOutcome { converged, iteration_limit, model_failed, cancelled };
+
 struct LeastSquaresResult {
     Eigen::VectorXd x;
     double chi2 = 0.0;
     int iterations = 0;
     int evaluations = 0;
-    bool converged = false;
+    FitOutcome outcome = FitOutcome::model_failed;
+    bool evaluated = false;     // chi2 (and the Jacobian, when it could be formed) belong to x
     Eigen::MatrixXd jacobian;   // at x
+    bool converged() const { return outcome == FitOutcome::converged; }
 };
 
 // Jacobian by forward differences.

@@ -1,50 +1,120 @@
-// Atomic file output; see fileio.hpp.
+// Atomic, link-safe file output and the folder lock; see fileio.hpp.
 #include "sim/io/fileio.hpp"
 
 #include <cerrno>
 #include <cstdio>
+#include <cstdlib>
 #include <cstring>
 #include <filesystem>
 #include <stdexcept>
 
 #include <fcntl.h>
+#include <sys/file.h>
+#include <sys/stat.h>
 #include <unistd.h>
+
+#include "sim/base/errors.hpp"
 
 namespace wayward {
 
-std::string temporary_path_for(const std::string& path) {
-    return path + ".tmp-" + std::to_string(::getpid());
+namespace fs = std::filesystem;
+
+namespace {
+
+[[noreturn]] void fail_system(const std::string& path, int err) {
+    throw std::runtime_error("cannot write " + path + ": " + std::strerror(err));
 }
 
-void commit_file(const std::string& from, const std::string& to) {
-    if (std::rename(from.c_str(), to.c_str()) != 0) {
-        const std::string why = std::strerror(errno);
-        std::remove(from.c_str());
-        throw std::runtime_error("cannot write " + to + ": " + why);
-    }
-}
-
-void write_file_atomic(const std::string& path, const std::string& content) {
-    const std::string tmp = temporary_path_for(path);
-    const int fd = ::open(tmp.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
-    if (fd < 0) throw std::runtime_error("cannot write " + path + ": " + std::strerror(errno));
+bool write_all(int fd, const std::string& content) {
     std::size_t done = 0;
     while (done < content.size()) {
         const ssize_t n = ::write(fd, content.data() + done, content.size() - done);
         if (n < 0) {
             if (errno == EINTR) continue;
-            const std::string why = std::strerror(errno);
-            ::close(fd);
-            std::remove(tmp.c_str());
-            throw std::runtime_error("cannot write " + path + ": " + why);
+            return false;
         }
         done += static_cast<std::size_t>(n);
     }
-    if (::fsync(fd) != 0 || ::close(fd) != 0) {
-        std::remove(tmp.c_str());
-        throw std::runtime_error("cannot write " + path + ": " + std::strerror(errno));
+    return true;
+}
+
+}  // namespace
+
+void refuse_link_at(const std::string& path, const std::string& field) {
+    struct stat st{};
+    if (::lstat(path.c_str(), &st) != 0) return;  // absent: fine
+    if (S_ISLNK(st.st_mode))
+        throw InputError(path, 0, field, "is a symbolic link; Wayward never writes through a link (remove it, or choose another folder)");
+    if (!S_ISREG(st.st_mode))
+        throw InputError(path, 0, field, S_ISDIR(st.st_mode) ? "is a folder, not a file" : "is not a regular file");
+}
+
+void write_file_atomic(const std::string& path, const std::string& content, mode_t mode) {
+    refuse_link_at(path);
+    const fs::path target(path);
+    const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
+    // mkostemps (glibc) opens with O_CREAT|O_EXCL|O_RDWR and a random six-character name, retrying on a clash:
+    // an existing name, link or not, is never opened. The suffix-free template keeps the name recognisable.
+    std::string name = (dir / ("." + target.filename().string() + temporary_marker + "XXXXXX")).string();
+    const int fd = ::mkostemp(name.data(), O_CLOEXEC);
+    if (fd < 0) fail_system(path, errno);
+    auto fail = [&](int err) {
+        ::close(fd);
+        ::unlink(name.c_str());
+        fail_system(path, err);
+    };
+    if (::fchmod(fd, mode) != 0) fail(errno);
+    if (!write_all(fd, content)) fail(errno);
+    if (::fsync(fd) != 0) fail(errno);
+    if (::close(fd) != 0) {
+        const int err = errno;
+        ::unlink(name.c_str());
+        fail_system(path, err);
     }
-    commit_file(tmp, path);
+    // rename(2) replaces whatever is at the name (a link planted since the check above included) without following it.
+    if (::rename(name.c_str(), path.c_str()) != 0) {
+        const int err = errno;
+        ::unlink(name.c_str());
+        fail_system(path, err);
+    }
+}
+
+int remove_stale_temporaries(const std::string& dir) {
+    int removed = 0;
+    std::error_code ec;
+    for (fs::directory_iterator it(dir, ec), end; !ec && it != end; it.increment(ec)) {
+        const std::string name = it->path().filename().string();
+        if (name.empty() || name[0] != '.' || name.find(temporary_marker) == std::string::npos) continue;
+        if (!it->is_regular_file(ec) || it->is_symlink(ec)) continue;
+        if (fs::remove(it->path(), ec)) ++removed;
+    }
+    return removed;
+}
+
+WriterLock::WriterLock(const std::string& dir, const std::string& field) {
+    const std::string path = dir + "/.wayward.lock";
+    fd_ = ::open(path.c_str(), O_RDWR | O_CREAT | O_NOFOLLOW | O_CLOEXEC, 0600);
+    if (fd_ < 0) {
+        const int err = errno;
+        if (err == ELOOP) refuse_link_at(path, field);
+        throw InputError(path, 0, field, std::string("cannot open the folder's lock file: ") + std::strerror(err));
+    }
+    struct stat st{};
+    if (::fstat(fd_, &st) != 0 || !S_ISREG(st.st_mode)) {
+        ::close(fd_);
+        throw InputError(path, 0, field, "the folder's lock file is not a regular file");
+    }
+    if (::flock(fd_, LOCK_EX | LOCK_NB) != 0) {
+        const int err = errno;
+        ::close(fd_);
+        if (err == EWOULDBLOCK)
+            throw InputError(dir, 0, field, "another wayward run is writing in this folder; wait for it to finish, or choose another folder");
+        throw InputError(path, 0, field, std::string("cannot lock the folder: ") + std::strerror(err));
+    }
+}
+
+WriterLock::~WriterLock() {
+    if (fd_ >= 0) ::close(fd_);  // closing releases the flock
 }
 
 std::vector<std::string> split_csv_line(const std::string& line) {

@@ -1,9 +1,14 @@
 // Validating TOML reader; see toml_reader.hpp.
 #include "sim/io/toml_reader.hpp"
 
+#include <cerrno>
 #include <cmath>
-#include <fstream>
+#include <cstring>
 #include <sstream>
+
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 namespace wayward::detail {
 
@@ -46,6 +51,29 @@ std::optional<long long> TableReader::integer(const std::string& key) {
     if (!n) return std::nullopt;
     if (auto i = n->as_integer()) return i->get();
     fail(key, "expected an integer");
+}
+
+std::optional<long long> TableReader::integer_in(const std::string& key, long long lo, long long hi) {
+    const auto v = integer(key);
+    if (v && (*v < lo || *v > hi)) fail(key, "must be an integer in [" + std::to_string(lo) + ", " + std::to_string(hi) + "]");
+    return v;
+}
+
+std::string name_problem(const std::string& text) {
+    if (text.empty()) return "is empty";
+    if (text.size() > 64) return "is longer than 64 characters";
+    for (unsigned char c : text) {
+        if (c < 0x20 || c == 0x7f) return "holds a control character (a newline or tab, say)";
+        if (c == ',' || c == '"') return "holds a comma or a double quote, which the CSV tables cannot carry";
+    }
+    return "";
+}
+
+std::string TableReader::required_name(const std::string& key) {
+    const std::string v = required_string(key);
+    const std::string problem = name_problem(v);
+    if (!problem.empty()) fail(key, problem);
+    return v;
 }
 
 std::optional<std::string> TableReader::string(const std::string& key) {
@@ -137,11 +165,43 @@ toml::table parse_toml(const std::string& text, const std::string& file) {
 }
 
 std::string read_text_file(const std::string& path) {
-    std::ifstream in(path, std::ios::binary);
-    if (!in) throw InputError(path, 0, "", "cannot open the file");
-    std::ostringstream ss;
-    ss << in.rdbuf();
-    return ss.str();
+    // open(2) and fstat(2) rather than an ifstream: the reason (missing, permission, a folder) reaches the message,
+    // and a folder is refused instead of reading as an empty file.
+    const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
+    if (fd < 0) {
+        const int err = errno;
+        throw InputError(path, 0, "", std::string("cannot open the file: ") +
+                                          (err == ENOENT ? "it does not exist" : err == EACCES ? "permission denied" : std::strerror(err)));
+    }
+    struct stat st{};
+    if (::fstat(fd, &st) != 0 || !S_ISREG(st.st_mode)) {
+        const bool dir = S_ISDIR(st.st_mode);
+        ::close(fd);
+        throw InputError(path, 0, "", dir ? "is a folder, not a file" : "is not a regular file");
+    }
+    if (st.st_size > max_input_bytes) {
+        ::close(fd);
+        throw InputError(path, 0, "", "is larger than " + std::to_string(max_input_bytes >> 20) + " MiB; no Wayward input is that large");
+    }
+    std::string text;
+    char buf[65536];
+    for (;;) {
+        const ssize_t n = ::read(fd, buf, sizeof buf);
+        if (n < 0 && errno == EINTR) continue;
+        if (n < 0) {
+            const int err = errno;
+            ::close(fd);
+            throw InputError(path, 0, "", std::string("cannot read the file: ") + std::strerror(err));
+        }
+        if (n == 0) break;
+        text.append(buf, static_cast<std::size_t>(n));
+        if (static_cast<long long>(text.size()) > max_input_bytes) {
+            ::close(fd);
+            throw InputError(path, 0, "", "is larger than " + std::to_string(max_input_bytes >> 20) + " MiB; no Wayward input is that large");
+        }
+    }
+    ::close(fd);
+    return text;
 }
 
 }  // namespace wayward::detail

@@ -29,6 +29,10 @@ public:
     double number_or(const std::string& key, double fallback) { return number(key).value_or(fallback); }
     double required_number(const std::string& key);
     std::optional<long long> integer(const std::string& key);
+    // An integer checked against [lo, hi] before anyone narrows it (4294967297 must not become 1 in an int).
+    std::optional<long long> integer_in(const std::string& key, long long lo, long long hi);
+    // A name that lands in our CSV tables and printed lists: 1 to 64 characters, no comma, quote or control character.
+    std::string required_name(const std::string& key);
     std::optional<std::string> string(const std::string& key);
     std::string required_string(const std::string& key);
     std::optional<bool> boolean(const std::string& key);
@@ -50,9 +54,14 @@ private:
     std::set<std::string> used_;
 };
 
+// Why `text` cannot be a name (empty when it can): 1 to 64 bytes, no comma, double quote or control character.
+std::string name_problem(const std::string& text);
+
 // Parses TOML text, turning toml++'s parse errors into InputError with file and line.
 toml::table parse_toml(const std::string& text, const std::string& file);
-// Reads a whole file; throws InputError (line 0) if it cannot be read.
+// Reads a whole file, byte for byte; throws InputError (line 0) naming the reason if it
+// cannot be read, is a folder, or is larger than max_input_bytes.
+inline constexpr long long max_input_bytes = 256LL << 20;
 std::string read_text_file(const std::string& path);
 
 }  // namespace wayward::detail

@@ -4,9 +4,11 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <stdexcept>
 
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
+#include "sim/model/wisdom_holman.hpp"
 
 namespace wayward {
 
@@ -22,6 +24,19 @@ Elements HiddenOrbit::elements() const {
     return el;
 }
 
+const std::vector<ModelIntegrator>& model_integrators() {
+    static const std::vector<ModelIntegrator> table = {
+        {"adaptive", "Runge-Kutta-Fehlberg 7(8), adaptive (rel_tol); the reference"},
+        {"wisdom-holman", "Wisdom-Holman map in Jacobi coordinates, fixed step, Wisdom-Holman-Touma corrector; fast"},
+    };
+    return table;
+}
+
+bool is_model_integrator(const std::string& name) {
+    const auto& t = model_integrators();
+    return std::any_of(t.begin(), t.end(), [&](const ModelIntegrator& m) { return m.name == name; });
+}
+
 bool ModelSetup::weights_estimated() const {
     return std::any_of(era_records_sigma.begin(), era_records_sigma.end(), [](bool b) { return !b; });
 }
@@ -29,6 +44,8 @@ bool ModelSetup::weights_estimated() const {
 Vec3 ModelSetup::observer_helio_at(double t) const { return inner.position(observer, t) - inner.position(0, t); }
 
 ModelSetup make_setup(const Exercise& ex, const ModelOptions& options) {
+    if (!is_model_integrator(options.integrator))
+        throw std::invalid_argument("unknown fitting-model integrator '" + options.integrator + "'");
     ModelSetup s;
     s.brief = ex.brief;
     s.options = options;
@@ -145,7 +162,7 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     if (state.hidden) {
         const HiddenOrbit& h = *state.hidden;
         if (!(h.mass > 0.0) || !(h.semi_major_axis > 0.0) || !(std::hypot(h.k, h.h) < 0.95) || !std::isfinite(h.mean_longitude)) {
-            run.problem = "hidden-body parameters out of range";
+            run.outcome = ModelOutcome::parameters_out_of_range;
             return run;
         }
         const double gm_h = gm_from_mass(h.mass);
@@ -160,21 +177,46 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     const auto bary = helio_to_bary(sys.gm, rel);
     sys.state.assign(6 * sys.size(), 0.0);
     for (std::size_t i = 0; i < bary.size(); ++i) sys.set(i, bary[i]);
+    const double t0 = t_begin.value_or(setup.t_begin);
+    if (setup.options.integrator == "wisdom-holman") {
+        WisdomHolmanOptions wo;
+        wo.central_quadrupole = setup.pair_quadrupole;
+        WisdomHolmanResult r = integrate_wisdom_holman(sys, t0, std::max(t_end, t0), wo);
+        if (r.outcome != WisdomHolmanOutcome::ok) {
+            run.outcome = ModelOutcome::map_failed;
+            run.map = r.outcome;
+            return run;
+        }
+        run.outer = std::move(r.ephemeris);
+        run.outcome = ModelOutcome::ok;
+        return run;
+    }
     IntegratorOptions io;
     io.rel_tol = setup.options.rel_tol;
     io.central_quadrupole = setup.pair_quadrupole;
     // A trial orbit that runs into a close encounter must fail fast (the fit then rejects the step), not fill
     // memory with dense output: ordinary model runs take a few thousand steps.
     io.max_steps = 200'000;
-    const double t0 = t_begin.value_or(setup.t_begin);
     IntegrationResult r = integrate(sys, t0, std::max(t_end, t0), io);
     if (r.outcome != IntegrationOutcome::ok) {
-        run.problem = "model integration failed: " + to_string(r.outcome);
+        run.outcome = ModelOutcome::integration_failed;
+        run.integration = r.outcome;
         return run;
     }
     run.outer = std::move(r.ephemeris);
-    run.ok = true;
+    run.outcome = ModelOutcome::ok;
     return run;
+}
+
+std::string ModelRun::problem() const {
+    switch (outcome) {
+        case ModelOutcome::not_run: return "the model was not run";
+        case ModelOutcome::ok: return "none";
+        case ModelOutcome::parameters_out_of_range: return "hidden-body parameters out of range";
+        case ModelOutcome::integration_failed: return "model integration failed: " + to_string(integration);
+        case ModelOutcome::map_failed: return "model integration failed: " + to_string(map);
+    }
+    return "unknown";
 }
 
 namespace {
@@ -182,17 +224,8 @@ SkyPosition apparent_from(const ModelSetup& setup, const ModelRun& run, std::siz
     const double gm_star = setup.known.gm[0], gm_obs = setup.known.gm[setup.observer];
     const double star_share = gm_star / (gm_star + gm_obs);
     const Vec3 observer = run.outer.position(0, t) + star_share * observer_helio;
-    Vec3 rel = run.outer.position(index, t) - observer;
-    if (setup.options.light_time == LightTime::corrected) {
-        double tau = rel.norm() / c_au_per_day;
-        for (int it = 0; it < 8; ++it) {
-            rel = run.outer.position(index, std::max(t - tau, run.outer.t_begin())) - observer;
-            const double next = rel.norm() / c_au_per_day;
-            const bool done = std::abs(next - tau) < 1e-13;
-            tau = next;
-            if (done) break;
-        }
-    }
+    const Vec3 rel = setup.options.light_time == LightTime::corrected ? solve_light_time(run.outer, index, t, observer).relative
+                                                                       : Vec3(run.outer.position(index, t) - observer);
     return to_sky(setup.frame.to_frame(rel));
 }
 }  // namespace
@@ -202,7 +235,7 @@ SkyPosition model_apparent(const ModelSetup& setup, const ModelRun& run, std::si
 }
 
 bool weighted_residuals(const ModelSetup& setup, const ModelRun& run, Eigen::VectorXd& out) {
-    if (!run.ok) return false;
+    if (!run.ok()) return false;
     out.resize(static_cast<Eigen::Index>(2 * setup.obs.size()));
     for (std::size_t k = 0; k < setup.obs.size(); ++k) {
         const FitObservation& f = setup.obs[k];

@@ -2,7 +2,9 @@
 // For speed the fitting model treats the observer planet and its star as one inner pair: the outer bodies are
 // integrated about the pair's barycentre (with the pair's total mass and time-averaged quadrupole), and the
 // observer's heliocentric position is taken from the team's own ephemeris of its planet (observer.csv). A test
-// compares the model with the truth integrator. Units: days, radians inside; arcsec for residuals and sigma.
+// compares the model with the truth integrator. The outer bodies are integrated by the Wisdom-Holman map
+// (wisdom_holman.hpp) or, by name, by the adaptive Odeint reference (integrate.hpp); see model_integrators().
+// Units: days, radians inside; arcsec for residuals and sigma.
 #pragma once
 
 #include <array>
@@ -14,6 +16,7 @@
 #include <Eigen/Dense>
 
 #include "sim/exercise/exercise.hpp"
+#include "sim/model/wisdom_holman.hpp"
 #include "sim/physics/geometry.hpp"
 
 namespace wayward {
@@ -40,8 +43,17 @@ struct HiddenOrbit {
 
 struct ModelOptions {
     LightTime light_time = LightTime::corrected;
-    double rel_tol = 1e-12;
+    double rel_tol = 1e-12;            // the adaptive integrator's tolerance
+    std::string integrator = "wisdom-holman";  // a name from model_integrators(); "adaptive" is the reference
 };
+
+// The fitting model's integrators, selectable by name (ModelOptions::integrator).
+struct ModelIntegrator {
+    std::string name;
+    std::string description;
+};
+const std::vector<ModelIntegrator>& model_integrators();
+bool is_model_integrator(const std::string& name);
 
 struct ModelState {
     std::vector<StateVector> planets;  // heliocentric states of the observed planets at epoch 0 (reference frame)
@@ -71,9 +83,13 @@ ModelSetup make_setup(const Exercise& ex, const ModelOptions& options = {});
 ModelState initial_state(const ModelSetup& setup);
 
 // Forward model: integrate and return (optionally) the model's apparent positions at the observations.
+enum class ModelOutcome { not_run, ok, parameters_out_of_range, integration_failed, map_failed };
 struct ModelRun {
-    bool ok = false;
-    std::string problem;
+    ModelOutcome outcome = ModelOutcome::not_run;
+    IntegrationOutcome integration = IntegrationOutcome::ok;  // why, when outcome is integration_failed
+    WisdomHolmanOutcome map = WisdomHolmanOutcome::ok;        // why, when outcome is map_failed
+    bool ok() const { return outcome == ModelOutcome::ok; }
+    std::string problem() const;         // the outcome in words, for messages
     Ephemeris outer;                     // central pair + observed planets (+ hidden), barycentric
     std::vector<std::size_t> planet_index;  // index in `outer` of each observed planet
     std::optional<std::size_t> hidden_index;

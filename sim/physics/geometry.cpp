@@ -32,23 +32,35 @@ Vec3 unit_vector(double lon, double lat) {
     return {std::cos(lat) * std::cos(lon), std::cos(lat) * std::sin(lon), std::sin(lat)};
 }
 
+LightTimeSolution solve_light_time(const Ephemeris& eph, std::size_t target, double t, const Vec3& observer_position) {
+    LightTimeSolution l;
+    l.relative = eph.position(target, t) - observer_position;
+    l.tau_days = l.relative.norm() / c_au_per_day;
+    for (l.iterations = 1; l.iterations <= 10; ++l.iterations) {
+        const double t_emit = std::max(t - l.tau_days, eph.t_begin());
+        l.relative = eph.position(target, t_emit) - observer_position;
+        const double next = l.relative.norm() / c_au_per_day;
+        const bool done = std::abs(next - l.tau_days) < 1e-13;
+        l.tau_days = next;
+        if (done) {
+            l.converged = true;
+            break;
+        }
+    }
+    return l;
+}
+
 Apparent apparent(const Ephemeris& eph, const ObserverFrame& frame, std::size_t observer, std::size_t target, double t,
                   LightTime light_time) {
     const Vec3 obs = eph.position(observer, t);
     Apparent a;
     Vec3 rel = eph.position(target, t) - obs;
     if (light_time == LightTime::corrected) {
-        double tau = rel.norm() / c_au_per_day;
-        a.converged = false;
-        for (a.iterations = 1; a.iterations <= 10; ++a.iterations) {
-            const double t_emit = std::max(t - tau, eph.t_begin());
-            rel = eph.position(target, t_emit) - obs;
-            const double next = rel.norm() / c_au_per_day;
-            const bool done = std::abs(next - tau) < 1e-15 * std::max(1.0, tau) + 1e-13;
-            tau = next;
-            if (done) { a.converged = true; break; }
-        }
-        a.light_time_days = tau;
+        const LightTimeSolution l = solve_light_time(eph, target, t, obs);
+        rel = l.relative;
+        a.light_time_days = l.tau_days;
+        a.iterations = l.iterations;
+        a.converged = l.converged;
     }
     a.sky = to_sky(frame.to_frame(rel));
     return a;

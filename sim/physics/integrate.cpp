@@ -51,12 +51,10 @@ double shortest_period(const System& s) {
     return best;
 }
 
-namespace {
-
 // Acceleration of every other body by the averaged quadrupole of body 0 (see CentralQuadrupole), and the
 // reaction on body 0: a = (3 G mu / 2) [2 Q rho / rho^5 - 5 (rho.Q.rho) rho / rho^7 + tr(Q) rho / rho^5],
 // rho from body 0 to the body (the gradient of the quadrupole term of the multipole expansion).
-void add_quadrupole(const CentralQuadrupole& cq, const std::vector<double>& gm, const double* pos, std::size_t stride,
+void add_central_quadrupole(const CentralQuadrupole& cq, const std::vector<double>& gm, const double* pos, std::size_t stride,
                     double* acc, std::size_t acc_stride) {
     const std::size_t n = gm.size();
     const double trace = cq.q.trace();
@@ -73,6 +71,8 @@ void add_quadrupole(const CentralQuadrupole& cq, const std::vector<double>& gm, 
     }
 }
 
+namespace {
+
 struct Rhs {
     const std::vector<double>* gm;
     std::size_t* calls;
@@ -80,7 +80,7 @@ struct Rhs {
     void operator()(const StateType& x, StateType& dxdt, double /*t*/) const {
         ++*calls;
         nbody_derivative(gm->size(), gm->data(), x.data(), dxdt.data());
-        if (quad) add_quadrupole(*quad, *gm, x.data(), 6, dxdt.data() + 3, 6);
+        if (quad) add_central_quadrupole(*quad, *gm, x.data(), 6, dxdt.data() + 3, 6);
     }
 };
 
@@ -99,7 +99,7 @@ struct Recorder {
         for (std::size_t i = 0; i < n; ++i)
             for (std::size_t k = 0; k < 3; ++k) pos[3 * i + k] = x[6 * i + k];
         nbody_accelerations_and_jerks(n, gm->data(), x.data(), acc.data(), jerk.data());
-        if (quad) add_quadrupole(*quad, *gm, pos.data(), 3, acc.data(), 3);
+        if (quad) add_central_quadrupole(*quad, *gm, pos.data(), 3, acc.data(), 3);
         accels.insert(accels.end(), acc.begin(), acc.end());
         jerks.insert(jerks.end(), jerk.begin(), jerk.end());
     }

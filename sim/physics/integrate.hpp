@@ -24,6 +24,12 @@ struct CentralQuadrupole {
     double gm_reduced = 0.0;                      // au^3/d^2
 };
 
+// Adds to acc (stride acc_stride per body) the accelerations by the averaged quadrupole of body 0 on every other
+// body and their reaction on body 0; pos has stride `stride` per body. Derives from a potential, so a symplectic
+// map may put it in its kick.
+void add_central_quadrupole(const CentralQuadrupole& cq, const std::vector<double>& gm, const double* pos, std::size_t stride,
+                            double* acc, std::size_t acc_stride);
+
 struct IntegratorOptions {
     std::string method = "rkf78";
     double rel_tol = 1e-13;

@@ -62,6 +62,9 @@ struct FamilySpec {
     int observer_position = 0;       // 1-based index of the observer in the family (0: none)
 };
 
+// The smallest sigma (arcsec) a scenario or an observation log may give: a micro-arcsecond.
+inline constexpr double min_sigma_arcsec = 1e-6;
+
 struct Era {
     std::string label;
     long line = 0;

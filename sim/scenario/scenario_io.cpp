@@ -3,6 +3,7 @@
 #include <cmath>
 #include <limits>
 #include <set>
+#include <sstream>
 
 #include "sim/scenario/scenario.hpp"
 #include "sim/io/toml_reader.hpp"
@@ -127,7 +128,7 @@ BodySpec read_body(const toml::table& t, const std::string& file, std::size_t in
     TableReader r(t, file, "body[" + std::to_string(index + 1) + "]");
     BodySpec b;
     b.line = r.line();
-    b.name = r.required_string("name");
+    b.name = r.required_name("name");
     if (b.name.empty()) r.fail("name", "must not be empty");
     b.role = parse_role(r);
     b.observer = r.boolean("observer").value_or(false);
@@ -141,7 +142,7 @@ BodySpec read_body(const toml::table& t, const std::string& file, std::size_t in
         if (!gm->is_fixed()) r.fail("gm", "gm must be a fixed number; draw `mass` instead");
         b.mass = Param::fixed_value(mass_from_gm(gm->value));
         b.mass.line = gm->line;
-        check_range(r, "gm", b.mass, 0.0, 1e300, true, false, "must be positive");
+        check_range(r, "gm", b.mass, 0.0, 0.1, true, false, "must give a mass that is positive and below 0.1 solar masses");
     } else {
         b.mass = *mass;
         check_range(r, "mass", b.mass, 0.0, 0.1, true, false, "must be positive and below 0.1 solar masses");
@@ -178,7 +179,7 @@ BodySpec read_body(const toml::table& t, const std::string& file, std::size_t in
         b.e = *e;
         check_range(r, "e", b.e, 0.0, 1.0, false, true,
                     "must be in [0, 1) for a body given as a bound orbit (hyperbolic bodies are not scenario bodies)");
-        check_range(r, a_key, b.a, 0.0, 1e6, true, false, "must be positive");
+        check_range(r, a_key, b.a, 0.0, 1e6, true, false, a ? "must be in (0, 1e6] au" : "must be positive and at most 1e6");
         b.i_deg = read_param(r, "i_deg").value_or(Param::fixed_value(0.0));
         check_range(r, "i_deg", b.i_deg, 0.0, 180.0, false, false, "must be in [0, 180] degrees");
         b.node_deg = read_param(r, "node_deg").value_or(Param::fixed_value(0.0));
@@ -207,6 +208,53 @@ std::optional<Param> read_param_public(TableReader& r, const std::string& key) {
 void read_family(TableReader& root, Scenario& sc);        // scenario_family.cpp
 void read_observing_plan(TableReader& root, Scenario& sc);  // scenario_plan.cpp
 
+namespace {
+// The integrators take a roughly fixed number of steps per orbit, so the innermost orbit's revolutions over the
+// span bound the cost of every run. A close-in planet (a = 0.01 au circles in hours) over centuries would take
+// hours; refuse it up front with the reason rather than run for minutes without a word.
+constexpr double max_innermost_orbits = 20000.0;
+constexpr double max_draw_orbits = 5e5;
+
+void check_integration_cost(const Scenario& sc) {
+    double a_min = std::numeric_limits<double>::infinity();
+    long line = 1;
+    std::string field;
+    for (std::size_t k = 0; k < sc.bodies.size(); ++k) {
+        const BodySpec& b = sc.bodies[k];
+        if (b.a_relative_to_outer || !b.has_elements) continue;
+        if (b.a.min_value() < a_min) {
+            a_min = b.a.min_value();
+            line = b.line;
+            field = "body[" + std::to_string(k + 1) + "].a";
+        }
+    }
+    if (sc.family.present && sc.family.inner_a.min_value() < a_min) {
+        a_min = sc.family.inner_a.min_value();
+        line = sc.family.line;
+        field = "known_family.inner_a";
+    }
+    if (!std::isfinite(a_min) || !(a_min > 0.0)) return;  // other checks name a missing or bad distance
+    const double star_mass = std::max(sc.star_mass.min_value(), 1e-3);
+    const double period_years = std::sqrt(a_min * a_min * a_min / star_mass);  // Kepler's third law in au, years, solar masses
+    const double orbits = sc.span_years / period_years;
+    if (orbits > max_innermost_orbits) {
+        std::ostringstream msg;
+        msg << "an orbit this close (" << a_min << " au) makes " << std::llround(orbits) << " revolutions over the " << sc.span_years
+            << "-year span, more than the " << max_innermost_orbits << " Wayward integrates in reasonable time; move it out or shorten span_years";
+        throw InputError(sc.file, line, field, msg.str());
+    }
+    // Every rejected draw may cost a check integration, so draws times revolutions bounds the worst case too
+    // (5e5 is a few minutes of one core for a five-body system; the bundled scenarios need at most 6e4).
+    if (!sc.all_fixed() && sc.rules.max_draws * orbits > max_draw_orbits) {
+        std::ostringstream msg;
+        msg << "max_draws = " << sc.rules.max_draws << " check integrations of " << std::llround(orbits)
+            << " revolutions each could run for a long time; keep max_draws x revolutions of the innermost orbit below "
+            << max_draw_orbits << " (max_draws at most " << static_cast<long long>(max_draw_orbits / orbits) << " here)";
+        throw InputError(sc.file, 0, "scenario.plausibility.max_draws", msg.str());
+    }
+}
+}  // namespace
+
 Scenario parse_scenario(const std::string& text, const std::string& file) {
     const toml::table root_table = detail::parse_toml(text, file);
     TableReader root(root_table, file, "");
@@ -229,10 +277,13 @@ Scenario parse_scenario(const std::string& text, const std::string& file) {
             sc.rules.min_hill_separation = p.number_or("min_hill_separation", sc.rules.min_hill_separation);
             if (!(sc.rules.min_hill_separation >= 2.0 * std::sqrt(3.0)))
                 p.fail("min_hill_separation", "must be at least 2*sqrt(3) = 3.46 mutual Hill radii (Gladman 1993)");
-            sc.rules.max_draws = static_cast<int>(p.integer("max_draws").value_or(sc.rules.max_draws));
-            if (sc.rules.max_draws < 1 || sc.rules.max_draws > 100000) p.fail("max_draws", "must be in [1, 100000]");
+            // Each rejected draw can cost a whole check integration, so the number of draws is bounded up front.
+            sc.rules.max_draws = static_cast<int>(p.integer_in("max_draws", 1, 2000).value_or(sc.rules.max_draws));
             sc.rules.max_energy_error = p.number_or("max_energy_error", sc.rules.max_energy_error);
-            if (!(sc.rules.max_energy_error > 0.0)) p.fail("max_energy_error", "must be positive");
+            // Below 1e-12 the limit sits at the integrator's own error level: every draw would fail its check
+            // integration and the run would grind through all of them.
+            if (!(sc.rules.max_energy_error >= 1e-12 && sc.rules.max_energy_error <= 1.0))
+                p.fail("max_energy_error", "must be in [1e-12, 1] (a tighter limit rejects every draw)");
             p.finish();
         }
         r.finish();
@@ -242,11 +293,11 @@ Scenario parse_scenario(const std::string& text, const std::string& file) {
     if (!star) throw InputError(file, 1, "star", "the [star] table is required (name, mass)");
     {
         TableReader r(*star, file, "star");
-        sc.star_name = r.required_string("name");
+        sc.star_name = r.required_name("name");
         auto m = read_param(r, "mass");
         if (!m) r.fail("mass", "is required (solar masses)");
         sc.star_mass = *m;
-        check_range(r, "mass", sc.star_mass, 0.0, 1000.0, true, false, "must be positive");
+        check_range(r, "mass", sc.star_mass, 0.0, 1000.0, true, false, "must be in (0, 1000] solar masses");
         r.finish();
     }
 
@@ -276,6 +327,7 @@ Scenario parse_scenario(const std::string& text, const std::string& file) {
         throw InputError(file, bodies.empty() ? 1 : sc.bodies.front().line, "observer",
                          "no observer: mark exactly one known planet with observer = true");
 
+    check_integration_cost(sc);
     read_observing_plan(root, sc);
     if (const toml::table* tel = root.table("telescope")) {
         TableReader r(*tel, file, "telescope");

@@ -23,6 +23,10 @@ void read_family(TableReader& root, Scenario& sc) {
     auto names = r.strings("names");
     if (!names || names->empty()) r.fail("names", "is required: the names to give the drawn planets, innermost first");
     f.names = *names;
+    for (const std::string& n : f.names) {
+        const std::string problem = detail::name_problem(n);
+        if (!problem.empty()) r.fail("names", "the name \"" + n + "\" " + problem);
+    }
     auto count = r.numbers("count");
     if (!count || count->size() != 2) r.fail("count", "is required: [fewest, most] planets to draw");
     f.count_min = static_cast<int>((*count)[0]);
@@ -46,7 +50,7 @@ void read_family(TableReader& root, Scenario& sc) {
     if (!(f.mass.min_value() > 0.0 && f.mass.max_value() < 0.1)) r.fail("mass", "must be positive and below 0.1 solar masses");
     if (!(f.e.min_value() >= 0.0 && f.e.max_value() < 1.0)) r.fail("e", "must be in [0, 1)");
     if (!(f.i_deg.min_value() >= 0.0 && f.i_deg.max_value() <= 180.0)) r.fail("i_deg", "must be in [0, 180]");
-    f.observer_position = static_cast<int>(r.integer("observer").value_or(0));
+    f.observer_position = static_cast<int>(r.integer_in("observer", 0, 1000).value_or(0));
     if (f.observer_position < 0 || f.observer_position > f.count_min)
         r.fail("observer", "must name a planet that is always drawn (1.." + std::to_string(f.count_min) + ")");
     r.finish();
@@ -97,21 +101,26 @@ void read_observing_plan(TableReader& root, Scenario& sc) {
         Era era;
         era.line = e.line();
         era.label = e.string("label").value_or("era " + std::to_string(k + 1));
-        if (era.label.find_first_of(",\"\n") != std::string::npos) e.fail("label", "must not contain commas, quotes or line breaks");
+        if (const std::string problem = detail::name_problem(era.label); !problem.empty()) e.fail("label", problem);
         era.start_year = e.required_number("start_year");
         era.end_year = e.required_number("end_year");
         if (!(era.end_year > era.start_year)) e.fail("end_year", "the era ends before it starts");
         if (era.start_year < y0 || era.end_year > y1) e.fail("start_year", "the era must lie within the scenario's span");
-        const long long per = e.integer("per_season").value_or(1);
-        if (per < 1 || per > 1000) e.fail("per_season", "must be an integer in [1, 1000]");
+        const long long per = e.integer_in("per_season", 1, 1000).value_or(1);
         era.per_season = static_cast<int>(per);
         auto nonneg = [&](const std::string& key, double fallback, bool positive) {
             const double v = e.number_or(key, fallback);
             if (positive ? !(v > 0.0) : !(v >= 0.0)) e.fail(key, positive ? "must be positive" : "must not be negative");
             return v;
         };
-        era.sigma_lon_arcsec = nonneg("sigma_lon_arcsec", 1.0, true);
-        era.sigma_lat_arcsec = nonneg("sigma_lat_arcsec", era.sigma_lon_arcsec, true);
+        // A sigma below a micro-arcsecond is no record anyone kept, and its weight (1/sigma^2) overflows.
+        auto sigma = [&](const std::string& key, double fallback) {
+            const double v = e.number_or(key, fallback);
+            if (!(v >= min_sigma_arcsec && v <= 1e6)) e.fail(key, "must be in [1e-6, 1e6] arcsec");
+            return v;
+        };
+        era.sigma_lon_arcsec = sigma("sigma_lon_arcsec", 1.0);
+        era.sigma_lat_arcsec = sigma("sigma_lat_arcsec", era.sigma_lon_arcsec);
         era.offset_lon_arcsec = e.number_or("offset_lon_arcsec", 0.0);
         era.offset_lat_arcsec = e.number_or("offset_lat_arcsec", 0.0);
         era.drift_lon_arcsec_per_yr = e.number_or("drift_lon_arcsec_per_yr", 0.0);
@@ -139,7 +148,7 @@ void read_observing_plan(TableReader& root, Scenario& sc) {
         s.year = e.required_number("year");
         if (!(s.year >= y0 && s.year <= y1)) e.fail("year", "must lie within the scenario's span");
         s.sigma_arcsec = e.number_or("sigma_arcsec", s.sigma_arcsec);
-        if (!(s.sigma_arcsec > 0.0)) e.fail("sigma_arcsec", "must be positive");
+        if (!(s.sigma_arcsec >= min_sigma_arcsec && s.sigma_arcsec <= 1e6)) e.fail("sigma_arcsec", "must be in [1e-6, 1e6] arcsec");
         e.finish();
         p.early.push_back(s);
     }

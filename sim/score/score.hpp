@@ -40,7 +40,4 @@ Score score_prediction(const Brief& brief, const AnswerKey& key, const Predictio
 // The same against a truth already integrated (integrate_truth), so several predictions share one integration.
 Score score_prediction(const Brief& brief, const TruthEphemeris& truth, const Prediction& prediction, double window_years = 60.0);
 
-// Writes luck.csv and luck.png beside each other.
-void write_luck(const Score& s, const std::string& csv_path, const std::string& png_path, const std::string& title);
-
 }  // namespace wayward

@@ -19,33 +19,13 @@
 #include <string>
 #include <vector>
 
+#include <memory>
+
 #include "sim/fit/known_fit.hpp"
+#include "sim/predict/predict.hpp"
+#include "sim/solve/solve_options.hpp"
 
 namespace wayward {
-
-enum class DistancePrior { free, fixed, gaussian, spacing };
-
-struct SolveOptions {
-    DistancePrior distance = DistancePrior::free;
-    double distance_au = 0.0;              // fixed or Gaussian mean
-    double distance_sigma_au = 0.0;        // Gaussian sigma
-    double spacing_sigma_fraction = 0.1;   // spacing-rule prior: sigma as a fraction of the rule's distance
-    bool circular = false;
-    bool coplanar = false;                 // true: the orbit lies in the observer's plane
-    double eccentricity_prior_sigma = 0.1; // weak Gaussian prior on e cos(varpi), e sin(varpi) when not circular
-    double inclination_prior_rad = 3.0 * 0.017453292519943295;  // weak Gaussian prior on the tilt components
-    int grid_distances = 10;
-    int grid_longitudes = 16;
-    int starts = 4;                        // distinct grid minima refined by Levenberg-Marquardt
-    int samples = 300;                     // covariance samples for the ellipse check and the 90% radius
-    std::optional<double> epoch_year;      // default: the brief's first search epoch
-    double track_years = 60.0;             // predicted track +- this around the epoch
-    double track_step_years = 0.25;
-    std::uint64_t seed = 1;                // for the covariance samples
-    ModelOptions model;
-    unsigned threads = 0;                  // 0: all cores (results do not depend on it)
-    std::string describe() const;          // one line in words
-};
 
 struct Minimum {
     HiddenOrbit orbit;
@@ -53,25 +33,7 @@ struct Minimum {
     bool converged = false;
     int iterations = 0;
     double start_distance_au = 0.0, start_longitude = 0.0;
-};
-
-struct TrackPoint {
-    double year = 0.0;
-    double lon = 0.0, lat = 0.0;  // radians
-};
-
-struct Prediction {
-    double epoch_year = 0.0;
-    double lon = 0.0, lat = 0.0, distance_au = 0.0;
-    // Covariance of (lambda cos(beta), beta) in arcsec^2 by linear propagation.
-    double cov_ll = 0.0, cov_lb = 0.0, cov_bb = 0.0;
-    double semi_major_arcsec = 0.0, semi_minor_arcsec = 0.0;
-    double orientation_deg = 0.0;   // major axis, from +lambda towards +beta
-    // The same from the covariance samples.
-    double sampled_semi_major_arcsec = 0.0, sampled_semi_minor_arcsec = 0.0;
-    double radius90_arcsec = 0.0;   // holds 90% of the sampled positions (about the predicted point)
-    int samples_used = 0;
-    std::vector<TrackPoint> track;
+    Eigen::VectorXd parameters;     // the whole parameter vector (planets' corrections included); in memory only
 };
 
 struct Solution {
@@ -90,6 +52,9 @@ struct Solution {
     double spacing_rule_au = 0.0;   // the rule's next distance (0 if fewer than 2 known planets)
     int model_runs = 0;
     Prediction prediction;
+    // In memory only (not in solution.toml): what the predictor needs to predict this solution at other epochs.
+    std::shared_ptr<const ModelSetup> setup;   // the model with the weights the solve ended with
+    FittedModel fit;                           // best parameters (planets included) and their full covariance
 };
 
 struct SolveProgress {
@@ -103,13 +68,8 @@ double spacing_rule_next(const Brief& brief);
 
 Solution solve(const Exercise& ex, const SolveOptions& options, const SolveProgress& progress = {});
 
-// Prediction of the hidden body of a model state at an epoch (with its track), no covariance.
-Prediction predict_position(const ModelSetup& setup, const ModelState& state, double epoch_year, double track_years,
-                            double track_step_years);
-
-// Semi-axes (sqrt of the eigenvalues) and orientation (major axis, degrees from +lambda towards +beta, in
-// [0, 180)) of the 2x2 covariance [[cll, clb], [clb, cbb]].
-void ellipse_axes(double cll, double clb, double cbb, double& major, double& minor, double& orientation_deg);
+// The predictor's options for a solve's options (track, samples, seed, threads).
+PredictOptions prediction_options(const SolveOptions& options);
 
 // solution.toml
 std::string solution_toml(const Solution& s);

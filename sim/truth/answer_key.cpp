@@ -6,7 +6,13 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
+#include <cerrno>
+#include <cstring>
+#include <limits>
 #include <sstream>
+#include <stdexcept>
+
+#include <sys/random.h>
 
 #include <toml++/toml.h>
 
@@ -49,10 +55,35 @@ std::string true_positions_csv(const ObservationSet& obs, double epoch0_year) {
     return s;
 }
 
-std::string answer_key_text(const Scenario& sc, const Truth& truth, const std::string& positions_sha) {
+std::string secret_hex(std::size_t bytes) {
+    std::vector<unsigned char> buf(bytes);
+    std::size_t done = 0;
+    while (done < bytes) {
+        const ssize_t n = ::getrandom(buf.data() + done, bytes - done, 0);
+        if (n < 0) {
+            if (errno == EINTR) continue;
+            throw std::runtime_error(std::string("cannot read the system's random source: ") + std::strerror(errno));
+        }
+        done += static_cast<std::size_t>(n);
+    }
+    static const char digits[] = "0123456789abcdef";
+    std::string hex;
+    for (unsigned char c : buf) {
+        hex += digits[c >> 4];
+        hex += digits[c & 15];
+    }
+    return hex;
+}
+
+std::uint64_t secret_seed() {
+    return std::strtoull(secret_hex(8).c_str(), nullptr, 16) >> 1;
+}
+
+std::string answer_key_text(const Scenario& sc, const Truth& truth, const std::string& positions_sha, const std::string& salt) {
     toml::table root;
     toml::table key;
     key.insert("scenario", sc.name);
+    if (!salt.empty()) key.insert("salt", salt);
     key.insert("seed", static_cast<int64_t>(truth.seed));
     key.insert("draws", static_cast<int64_t>(truth.draws));
     key.insert("true_positions_sha256", positions_sha);
@@ -80,27 +111,45 @@ std::string answer_key_text(const Scenario& sc, const Truth& truth, const std::s
     return "# Wayward answer key: the truth. Do not open before the prediction is made.\n" + toml_text(root);
 }
 
+std::string find_answer_key(const std::string& dir) {
+    const std::string beside = exercise_paths(dir).answer_key(), inside = dir + "/answer-key/answer_key.toml";
+    std::error_code ec;
+    return !fs::exists(beside, ec) && fs::exists(inside, ec) ? inside : beside;
+}
+
 AnswerKey open_answer_key(const Brief& brief, const std::string& key_path) {
     const std::string text = detail::read_text_file(key_path);
     if (sha256_hex(text) != brief.answer_key_sha256)
         throw InputError(key_path, 0, "answer_key_sha256",
-                         "the answer key does not match the SHA-256 sealed in the brief: it was changed, or it belongs to another exercise");
+                         "the answer key does not match the SHA-256 sealed in the brief (" + brief.file +
+                             "): the key or the brief was changed, or the key belongs to another exercise");
+    return parse_answer_key(text, key_path);
+}
+
+AnswerKey parse_answer_key(const std::string& text, const std::string& key_path) {
     const toml::table root_t = detail::parse_toml(text, key_path);
     TableReader root(root_t, key_path, "");
     AnswerKey k;
     k.file = key_path;
+    // The digest matched, but a key written by hand (or by another tool) may still lack a table: check, never assume.
+    const toml::table* head = root.table("answer_key");
+    if (!head) throw InputError(key_path, 1, "answer_key", "the [answer_key] table is missing: is this a Wayward answer key?");
     {
-        TableReader r(*root.table("answer_key"), key_path, "answer_key");
+        TableReader r(*head, key_path, "answer_key");
         k.scenario_name = r.required_string("scenario");
-        k.seed = static_cast<std::uint64_t>(r.integer("seed").value_or(0));
+        r.string("salt");  // only there to make the digest a hiding commitment
+        k.seed = static_cast<std::uint64_t>(r.integer_in("seed", 0, std::numeric_limits<std::int64_t>::max()).value_or(0));
         r.integer("draws");
         k.true_positions_sha256 = r.required_string("true_positions_sha256");
         r.finish();
     }
+    const toml::table* star = root.table("star");
+    if (!star) throw InputError(key_path, 1, "star", "the [star] table is missing");
     {
-        TableReader r(*root.table("star"), key_path, "star");
+        TableReader r(*star, key_path, "star");
         k.star_name = r.required_string("name");
         k.star_mass = r.required_number("mass");
+        if (!(k.star_mass > 0.0)) r.fail("mass", "must be positive");
         r.finish();
     }
     const auto bodies = root.tables("body");
@@ -108,9 +157,12 @@ AnswerKey open_answer_key(const Brief& brief, const std::string& key_path) {
         TableReader r(*bodies[i], key_path, "body[" + std::to_string(i + 1) + "]");
         DrawnBody d;
         d.name = r.required_string("name");
-        d.role = r.required_string("role") == "hidden" ? Role::hidden : Role::known;
+        const std::string role = r.required_string("role");
+        if (role != "hidden" && role != "known") r.fail("role", "must be \"hidden\" or \"known\"");
+        d.role = role == "hidden" ? Role::hidden : Role::known;
         d.observer = r.boolean("observer").value_or(false);
         d.mass = r.required_number("mass");
+        if (!(d.mass > 0.0)) r.fail("mass", "must be positive");
         d.elements = read_elements(r);
         const auto pos = r.numbers("helio_position_au"), vel = r.numbers("helio_velocity_au_per_day");
         if (!pos || pos->size() != 3) r.fail("helio_position_au", "needs three numbers");
@@ -122,10 +174,16 @@ AnswerKey open_answer_key(const Brief& brief, const std::string& key_path) {
         d.geometric_albedo = r.number_or("geometric_albedo", 0.0);
         if (!(d.geometric_albedo >= 0.0)) r.fail("geometric_albedo", "must not be negative");
         r.finish();
-        if (d.role == Role::hidden) k.hidden_name = d.name;
+        if (d.role == Role::hidden) {
+            if (!k.hidden_name.empty()) r.fail("role", "a second hidden body (the key holds exactly one)");
+            k.hidden_name = d.name;
+        }
         k.bodies.push_back(d);
     }
     root.finish();
+    int observers = 0;
+    for (const DrawnBody& d : k.bodies) observers += d.observer ? 1 : 0;
+    if (observers != 1) throw InputError(key_path, 1, "body", "the key must name exactly one observer planet");
     return k;
 }
 

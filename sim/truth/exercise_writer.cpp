@@ -26,7 +26,7 @@ using detail::fmt;
 Brief make_brief(const Scenario& sc, const Truth& truth, std::uint64_t seed) {
     Brief b;
     b.scenario_name = sc.name;
-    b.seed = seed;
+    // The seed stays out of the brief: with it and the scenario, the truth could be regenerated.
     b.epoch0_year = sc.epoch0_year;
     b.span_years = sc.span_years;
     b.star_name = truth.system.bodies[0].name;
@@ -96,27 +96,87 @@ ExerciseInMemory exercise_in_memory(const Scenario& sc, const Truth& truth, cons
     return m;
 }
 
+namespace {
+void write_exercise_locked(const ExercisePaths& paths, const Scenario& sc, const Truth& truth, const ObservationSet& obs,
+                           const Brief& brief_in, const Ephemeris& eph, bool force, bool& made_key_dir);
+}  // namespace
+
 void write_exercise(const ExercisePaths& paths, const Scenario& sc, const Truth& truth, const ObservationSet& obs,
                     const Brief& brief_in, const Ephemeris& eph, bool force) {
+    // The team's reader refuses an empty log, so an exercise without observations is never written.
+    if (obs.records.empty())
+        throw InputError(sc.file, sc.plan.eras.empty() ? 0 : sc.plan.eras.front().line, "observing",
+                         "the observing plan produced no observations (are the targets always too close to the star?)");
     std::error_code ec;
+    const bool made_dir = fs::create_directories(paths.dir, ec);
+    if (ec) throw InputError(paths.dir, 0, "--out", "cannot create the folder: " + ec.message());
+    bool made_key_dir = false;
+    try {
+        write_exercise_locked(paths, sc, truth, obs, brief_in, eph, force, made_key_dir);
+    } catch (...) {
+        // A refusal or a failure leaves no empty folder of ours behind (remove() takes only empty folders).
+        if (made_key_dir) fs::remove(paths.key_dir, ec);
+        if (made_dir) {
+            fs::remove(paths.dir + "/.wayward.lock", ec);
+            fs::remove(paths.dir, ec);
+        }
+        throw;
+    }
+}
+
+namespace {
+void write_exercise_locked(const ExercisePaths& paths, const Scenario& sc, const Truth& truth, const ObservationSet& obs,
+                           const Brief& brief_in, const Ephemeris& eph, bool force, bool& made_key_dir) {
+    std::error_code ec;
+    // One writer per folder: a second `new` into the same folder waits for nothing and fails, so a brief and a
+    // key from different seeds are never mixed. The check for an existing exercise is made under the lock.
+    const WriterLock lock(paths.dir, "--out");
+    refuse_link_at(paths.brief(), "--out");
     if (fs::exists(paths.brief()) && !force)
         throw InputError(paths.dir, 0, "--out", "an exercise already exists here; use --force to overwrite it");
-    fs::create_directories(paths.dir, ec);
-    if (ec) throw InputError(paths.dir, 0, "--out", "cannot create the folder: " + ec.message());
-    fs::create_directories(paths.key_dir, ec);
+    remove_stale_temporaries(paths.dir);  // leftovers of a killed run (safe: we hold the lock)
+    if (fs::is_symlink(paths.key_dir, ec))
+        throw InputError(paths.key_dir, 0, "--key-out", "is a symbolic link; give the real folder for the answer key");
+    made_key_dir = fs::create_directories(paths.key_dir, ec);
     if (ec) throw InputError(paths.key_dir, 0, "--key-out", "cannot create the folder: " + ec.message());
+    if (!fs::is_directory(paths.key_dir, ec)) throw InputError(paths.key_dir, 0, "--key-out", "is not a folder");
+    // A key folder we make is the trainer's alone: owner-only, like the key files in it.
+    if (made_key_dir) {
+        fs::permissions(paths.key_dir, fs::perms::owner_all, fs::perm_options::replace, ec);
+        if (ec) throw InputError(paths.key_dir, 0, "--key-out", "cannot make the folder private: " + ec.message());
+    }
+    remove_stale_temporaries(paths.key_dir);
     // A forced overwrite first removes the old brief, so the folder never pairs an old brief with new data.
-    if (force) fs::remove(paths.brief(), ec);
+    if (force) {
+        refuse_link_at(paths.brief(), "--out");
+        fs::remove(paths.brief(), ec);
+    }
+    // Every output name is checked before anything is written, so a refusal leaves nothing half-written.
+    for (const std::string& f : {paths.true_positions(), paths.answer_key(), paths.observations(), paths.observer_track(), paths.brief()})
+        refuse_link_at(f, "--out");
 
-    const std::string positions = true_positions_csv(obs, sc.epoch0_year);
-    write_file_atomic(paths.true_positions(), positions);
-    const std::string key = answer_key_text(sc, truth, sha256_hex(positions));
-    write_file_atomic(paths.answer_key(), key);
-    write_file_atomic(paths.observations(), format_observations_csv(obs.records, sc.epoch0_year));
-    write_file_atomic(paths.observer_track(), format_observer_csv(observer_track_for(obs.records, eph, truth.system.observer_index())));
-    Brief brief = brief_in;
-    brief.answer_key_sha256 = sha256_hex(key);
-    write_file_atomic(paths.brief(), format_brief(brief));  // last: its presence marks a complete exercise
+    std::vector<std::string> written;
+    try {
+        const std::string positions = true_positions_csv(obs, sc.epoch0_year);
+        write_file_atomic(paths.true_positions(), positions, 0600);
+        written.push_back(paths.true_positions());
+        const std::string key = answer_key_text(sc, truth, sha256_hex(positions), secret_hex(16));
+        write_file_atomic(paths.answer_key(), key, 0600);
+        written.push_back(paths.answer_key());
+        write_file_atomic(paths.observations(), format_observations_csv(obs.records, sc.epoch0_year));
+        written.push_back(paths.observations());
+        write_file_atomic(paths.observer_track(), format_observer_csv(observer_track_for(obs.records, eph, truth.system.observer_index())));
+        written.push_back(paths.observer_track());
+        Brief brief = brief_in;
+        brief.answer_key_sha256 = sha256_hex(key);
+        write_file_atomic(paths.brief(), format_brief(brief));  // last: its presence marks a complete exercise
+    } catch (...) {
+        // A full disk or any other failure: no key or log is left behind without its brief.
+        for (const std::string& f : written) fs::remove(f, ec);
+        throw;
+    }
 }
+
+}  // namespace
 
 }  // namespace wayward

@@ -1,0 +1,419 @@
+// The Wisdom-Holman map with the Wisdom-Holman-Touma corrector. See wisdom_holman.hpp.
+//
+// Hamiltonian split (Wisdom & Holman 1991, in Jacobi coordinates, bodies ordered outwards from the central
+// body): H = sum_j [p_j^2 / 2m'_j - G m_j eta_{j-1} / r'_j] + H_int, eta_j = m_0 + ... + m_j. The Kepler part
+// moves each Jacobi vector on a two-body orbit of GM = G eta_j; H_int is the full potential (every pair, and the
+// central body's averaged quadrupole) plus sum_j G m_j eta_{j-1} / r'_j. The kick is then the Jacobi transform
+// of the inertial accelerations of H's potential, plus G eta_j r'_j / r'^3_j for j >= 2; the pair (0, 1) is
+// left out of both, as its force is exactly the first Kepler term.
+// The map is drift(h/2) kick(h) drift(h/2). Its error is O(eps h^2) (eps: planet-to-star mass ratio), but all
+// of that error up to O(eps h^4) (corrector order 3) or O(eps h^6) (order 5) is a near-identity change of
+// variables: integrating y = C^-1(x) and reporting C(y) leaves O(eps h^{n+1} + eps^2 h^2) (Wisdom, Holman &
+// Touma 1996; their C is a product of stages Z(a, b) = D(a) K(-b) D(-2a) K(b) D(a)).
+// Hand-written rather than taken from a library: no Debian package provides a Wisdom-Holman map.
+#include "sim/model/wisdom_holman.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <numeric>
+
+namespace wayward {
+
+std::string to_string(WisdomHolmanOutcome outcome) {
+    switch (outcome) {
+        case WisdomHolmanOutcome::ok: return "ok";
+        case WisdomHolmanOutcome::kepler_not_converged: return "Kepler drift did not converge (close encounter?)";
+        case WisdomHolmanOutcome::non_finite_state: return "state became non-finite";
+        case WisdomHolmanOutcome::too_many_steps: return "too many steps";
+    }
+    return "?";
+}
+
+namespace {
+
+// Stumpff functions c0..c3 of z (Danby 1988, 6.9): series for |z| <= 0.1, then z is brought back by the
+// quadrupling identities c0(4z) = 2 c0^2 - 1, c1(4z) = c0 c1, c2(4z) = c1^2 / 2, c3(4z) = (c2 + c0 c3) / 4.
+void stumpff(double z, std::array<double, 4>& c) {
+    int quarterings = 0;
+    while (std::abs(z) > 0.1 && quarterings < 200) {
+        z *= 0.25;
+        ++quarterings;
+    }
+    // 1/(2k+2)! and 1/(2k+3)! for k = 0..7: the next term is below 1e-20 for |z| <= 0.1.
+    static constexpr double inv2[8] = {1.0 / 2, 1.0 / 24, 1.0 / 720, 1.0 / 40320, 1.0 / 3628800, 1.0 / 479001600,
+                                       1.0 / 87178291200.0, 1.0 / 20922789888000.0};
+    static constexpr double inv3[8] = {1.0 / 6, 1.0 / 120, 1.0 / 5040, 1.0 / 362880, 1.0 / 39916800, 1.0 / 6227020800.0,
+                                       1.0 / 1307674368000.0, 1.0 / 355687428096000.0};
+    double c2 = 0.0, c3 = 0.0;
+    for (int k = 7; k >= 0; --k) {
+        c2 = inv2[k] - z * c2;
+        c3 = inv3[k] - z * c3;
+    }
+    double c1 = 1.0 - z * c3, c0 = 1.0 - z * c2;
+    for (int i = 0; i < quarterings; ++i) {
+        const double n3 = 0.25 * (c2 + c0 * c3), n2 = 0.5 * c1 * c1, n1 = c0 * c1, n0 = 2.0 * c0 * c0 - 1.0;
+        c0 = n0;
+        c1 = n1;
+        c2 = n2;
+        c3 = n3;
+    }
+    c = {c0, c1, c2, c3};
+}
+
+}  // namespace
+
+bool kepler_drift(double mu, double dt, Vec3& position, Vec3& velocity) {
+    const double r0 = position.norm();
+    if (!(r0 > 0.0) || !std::isfinite(dt)) return false;
+    const double eta0 = position.dot(velocity);
+    const double beta = 2.0 * mu / r0 - velocity.squaredNorm();  // mu / a
+    // Universal Kepler equation F(s) = r0 G1 + eta0 G2 + mu G3 - dt = 0 with G_k = s^k c_k(beta s^2); F' = r > 0.
+    // Starting guess: the series of s(dt) to third order, from dt = r0 s + eta0 s^2/2 + (mu - beta r0) s^3/6 + ...
+    // reverted; for a step of 1/96 of a period its error is ~1e-6 of s, so one Halley step converges. A long
+    // drift (the series' terms no longer small) starts from dt / r0 and leaves the work to the iteration.
+    const double u = dt / r0, p = 0.5 * eta0 / r0, q = (mu - beta * r0) / (6.0 * r0);
+    const bool short_drift = std::abs(p * u) < 0.1 && std::abs(q * u * u) < 0.1;
+    double s = short_drift ? u * (1.0 + u * (-p + u * (2.0 * p * p - q))) : u;
+    std::array<double, 4> c{};
+    double g0 = 0.0, g1 = 0.0, g2 = 0.0, g3 = 0.0, r = r0;
+    auto evaluate = [&](double x) {
+        stumpff(beta * x * x, c);
+        g0 = c[0];
+        g1 = x * c[1];
+        g2 = x * x * c[2];
+        g3 = x * x * x * c[3];
+        r = r0 * g0 + eta0 * g1 + mu * g2;
+        return r0 * g1 + eta0 * g2 + mu * g3 - dt;
+    };
+    bool converged = false;
+    // Halley's iteration from the two-term series guess; Laguerre's (n = 5, Conway 1986) if that stalls, which
+    // converges from far worse guesses.
+    for (int it = 0; it < 60 && !converged; ++it) {
+        const double f = evaluate(s);
+        const double fp = r, fpp = eta0 * g0 + (mu - beta * r0) * g1;
+        double ds;
+        if (it < 12) {
+            ds = -f / (fp - 0.5 * f * fpp / fp);
+        } else {
+            const double n = 5.0;
+            const double disc = std::sqrt(std::abs((n - 1.0) * (n - 1.0) * fp * fp - n * (n - 1.0) * f * fpp));
+            ds = -n * f / (fp + std::copysign(disc, fp));
+        }
+        if (!std::isfinite(ds)) return false;
+        s += ds;
+        // Both iterations converge cubically: once a correction is below 1e-6 of s, the one after it would be
+        // below 1e-18 of s, under the rounding of s itself.
+        converged = std::abs(ds) <= 1e-6 * std::abs(s) || ds == 0.0;
+    }
+    if (!converged) return false;
+    evaluate(s);
+    if (!(r > 0.0) || !std::isfinite(r)) return false;
+    // f and g in difference form (f - 1, g' - 1) so that the small change is not lost against the state.
+    const double f_m1 = -mu * g2 / r0, g = dt - mu * g3;
+    const double fdot = -mu * g1 / (r0 * r), gdot_m1 = -mu * g2 / r;
+    const Vec3 x0 = position, v0 = velocity;
+    position = x0 + (f_m1 * x0 + g * v0);
+    velocity = v0 + (fdot * x0 + gdot_m1 * v0);
+    return true;
+}
+
+namespace {
+
+// The bodies in Jacobi order (central body first, then outwards by initial distance) and their GM sums.
+struct Chain {
+    std::size_t n = 0;
+    std::vector<std::size_t> original;  // original index of each Jacobi slot
+    std::vector<double> gm;             // GM per slot
+    std::vector<double> eta;            // gm[0] + ... + gm[j]
+    const CentralQuadrupole* quad = nullptr;
+};
+
+// Positions and velocities of every slot, 3 per body; slot 0 holds the barycentre.
+struct JacobiState {
+    std::vector<double> x, v;
+};
+
+// Inertial (slot order) -> Jacobi, for positions, velocities or accelerations alike (the same linear map).
+void to_jacobi(const Chain& c, const double* in, double* out) {
+    double sum[3] = {c.gm[0] * in[0], c.gm[0] * in[1], c.gm[0] * in[2]};
+    for (std::size_t j = 1; j < c.n; ++j) {
+        for (int k = 0; k < 3; ++k) {
+            out[3 * j + k] = in[3 * j + k] - sum[k] / c.eta[j - 1];
+            sum[k] += c.gm[j] * in[3 * j + k];
+        }
+    }
+    for (int k = 0; k < 3; ++k) out[k] = sum[k] / c.eta[c.n - 1];
+}
+
+void from_jacobi(const Chain& c, const double* in, double* out) {
+    double centre[3] = {in[0], in[1], in[2]};  // barycentre of slots 0..j, going down from j = n-1
+    for (std::size_t j = c.n; j-- > 1;) {
+        for (int k = 0; k < 3; ++k) {
+            centre[k] -= c.gm[j] / c.eta[j] * in[3 * j + k];
+            out[3 * j + k] = in[3 * j + k] + centre[k];
+        }
+    }
+    for (int k = 0; k < 3; ++k) out[k] = centre[k];
+}
+
+struct Scratch {
+    std::vector<double> pos, acc, accj;
+};
+
+// v_j += dt * (Jacobi acceleration of H_int), j >= 1.
+void kick(const Chain& c, JacobiState& s, double dt, Scratch& w) {
+    const std::size_t n = c.n;
+    w.pos.resize(3 * n);
+    w.acc.assign(3 * n, 0.0);
+    w.accj.resize(3 * n);
+    from_jacobi(c, s.x.data(), w.pos.data());
+    for (std::size_t i = 0; i < n; ++i) {
+        for (std::size_t j = std::max<std::size_t>(i + 1, i == 0 ? 2 : 0); j < n; ++j) {
+            const double dx = w.pos[3 * j] - w.pos[3 * i], dy = w.pos[3 * j + 1] - w.pos[3 * i + 1],
+                         dz = w.pos[3 * j + 2] - w.pos[3 * i + 2];
+            const double r2 = dx * dx + dy * dy + dz * dz;
+            const double inv3 = 1.0 / (r2 * std::sqrt(r2));
+            const double fi = c.gm[j] * inv3, fj = c.gm[i] * inv3;
+            w.acc[3 * i] += fi * dx;
+            w.acc[3 * i + 1] += fi * dy;
+            w.acc[3 * i + 2] += fi * dz;
+            w.acc[3 * j] -= fj * dx;
+            w.acc[3 * j + 1] -= fj * dy;
+            w.acc[3 * j + 2] -= fj * dz;
+        }
+    }
+    if (c.quad) add_central_quadrupole(*c.quad, c.gm, w.pos.data(), 3, w.acc.data(), 3);
+    to_jacobi(c, w.acc.data(), w.accj.data());
+    for (std::size_t j = 1; j < n; ++j) {
+        double* a = &w.accj[3 * j];
+        if (j >= 2) {
+            const double* x = &s.x[3 * j];
+            const double r2 = x[0] * x[0] + x[1] * x[1] + x[2] * x[2];
+            const double f = c.eta[j] / (r2 * std::sqrt(r2));
+            for (int k = 0; k < 3; ++k) a[k] += f * x[k];
+        }
+        for (int k = 0; k < 3; ++k) s.v[3 * j + k] += dt * a[k];
+    }
+}
+
+// Every Jacobi vector on its Kepler orbit for dt; the barycentre in a straight line.
+bool drift(const Chain& c, JacobiState& s, double dt) {
+    for (int k = 0; k < 3; ++k) s.x[k] += dt * s.v[k];
+    for (std::size_t j = 1; j < c.n; ++j) {
+        Vec3 x(s.x[3 * j], s.x[3 * j + 1], s.x[3 * j + 2]), v(s.v[3 * j], s.v[3 * j + 1], s.v[3 * j + 2]);
+        if (!kepler_drift(c.eta[j], dt, x, v)) return false;
+        for (int k = 0; k < 3; ++k) {
+            s.x[3 * j + static_cast<std::size_t>(k)] = x[k];
+            s.v[3 * j + static_cast<std::size_t>(k)] = v[k];
+        }
+    }
+    return true;
+}
+
+// The corrector's stages (a, b), in units of the step, applied in order (Wisdom, Holman & Touma 1996; a_k =
+// k sqrt(7/40), b from their order conditions: order 3: b = -sqrt(10/7)/48; order 5: b1 = -sqrt(10/7)/144,
+// b2 = 5 sqrt(10/7)/144), signed for the stage order and the D(a) K(-b) D(-2a) K(b) D(a) form used here (the
+// convergence test fails with either sign flipped: the map is then of order 2). The inverse has b negated.
+struct Stage {
+    double a, b;
+};
+std::vector<Stage> corrector_stages(int order) {
+    const double a1 = std::sqrt(7.0 / 40.0), a2 = 2.0 * a1, r = std::sqrt(10.0 / 7.0);
+    if (order == 3) return {{a1, -r / 48.0}, {-a1, r / 48.0}};
+    if (order == 5) {
+        const double b51 = -r / 144.0, b52 = 5.0 * r / 144.0;
+        return {{-a2, b51}, {-a1, b52}, {a1, -b52}, {a2, -b51}};
+    }
+    return {};
+}
+
+// C (sign = +1: mapped -> real) or C^-1 (sign = -1) as one list of drifts and kicks (amounts in units of the
+// step): the stages' neighbouring drifts are added, drifts that cancel are dropped and the kicks they separated
+// merged (kicks commute), which saves two drifts and a kick per pair of stages.
+struct Op {
+    bool is_kick;
+    double amount;
+};
+std::vector<Op> corrector_ops(const std::vector<Stage>& stages, double sign) {
+    std::vector<Op> out;
+    auto push = [&](Op op) {
+        if (!out.empty() && out.back().is_kick == op.is_kick) {
+            out.back().amount += op.amount;
+            if (!op.is_kick && out.back().amount == 0.0) out.pop_back();
+        } else {
+            out.push_back(op);
+        }
+    };
+    for (const Stage& st : stages) {
+        const double b = sign * st.b;
+        // Z(a, b) = D(a) K(-b) D(-2a) K(b) D(a)
+        for (Op op : {Op{false, st.a}, Op{true, -b}, Op{false, -2.0 * st.a}, Op{true, b}, Op{false, st.a}}) push(op);
+    }
+    return out;
+}
+
+bool apply_ops(const Chain& c, JacobiState& s, double h, const std::vector<Op>& ops, Scratch& w) {
+    for (const Op& op : ops) {
+        if (op.is_kick) kick(c, s, op.amount * h, w);
+        else if (!drift(c, s, op.amount * h)) return false;
+    }
+    return true;
+}
+
+bool finite(const std::vector<double>& v) {
+    return std::all_of(v.begin(), v.end(), [](double x) { return std::isfinite(x); });
+}
+
+// Nodes of one direction: times, barycentric states (original order), accelerations and jerks.
+struct Track {
+    std::vector<double> times, states, accels, jerks;
+};
+
+class Runner {
+public:
+    Runner(const Chain& c, const std::vector<Stage>& stages, double h)
+        : c_(c), to_real_(corrector_ops(stages, 1.0)), to_mapped_(corrector_ops(stages, -1.0)), h_(h) {}
+
+    // Records the real state of mapped state `s` at time t.
+    bool record(const JacobiState& s, double t, Track& out) {
+        JacobiState real = s;
+        if (!apply_ops(c_, real, h_, to_real_, w_)) return false;
+        const std::size_t n = c_.n;
+        pos_.resize(3 * n);
+        vel_.resize(3 * n);
+        from_jacobi(c_, real.x.data(), pos_.data());
+        from_jacobi(c_, real.v.data(), vel_.data());
+        state_.resize(6 * n);
+        for (std::size_t j = 0; j < n; ++j)
+            for (std::size_t k = 0; k < 3; ++k) {
+                state_[6 * c_.original[j] + k] = pos_[3 * j + k];
+                state_[6 * c_.original[j] + 3 + k] = vel_[3 * j + k];
+            }
+        if (!finite(state_)) return false;
+        acc_.resize(3 * n);
+        jerk_.resize(3 * n);
+        nbody_accelerations_and_jerks(n, gm_original_.data(), state_.data(), acc_.data(), jerk_.data());
+        if (c_.quad) add_central_quadrupole(*c_.quad, gm_original_, state_.data(), 6, acc_.data(), 3);
+        out.times.push_back(t);
+        out.states.insert(out.states.end(), state_.begin(), state_.end());
+        out.accels.insert(out.accels.end(), acc_.begin(), acc_.end());
+        out.jerks.insert(out.jerks.end(), jerk_.begin(), jerk_.end());
+        return true;
+    }
+
+    // From real state x0 at t0, `steps` steps of h (signed), a node every `every` steps and at the end.
+    WisdomHolmanOutcome run(JacobiState s, double t0, std::size_t steps, int every, Track& out) {
+        if (!apply_ops(c_, s, h_, to_mapped_, w_)) return WisdomHolmanOutcome::kepler_not_converged;
+        if (!record(s, t0, out)) return WisdomHolmanOutcome::non_finite_state;
+        const double half = 0.5 * h_;
+        double pending = half;  // drift owed before the next kick
+        for (std::size_t k = 1; k <= steps; ++k) {
+            // Drift-kick-drift; between nodes the two half drifts of consecutive steps are one drift.
+            if (!drift(c_, s, pending)) return WisdomHolmanOutcome::kepler_not_converged;
+            kick(c_, s, h_, w_);
+            pending = h_;
+            if (k % static_cast<std::size_t>(every) == 0 || k == steps) {
+                if (!drift(c_, s, half)) return WisdomHolmanOutcome::kepler_not_converged;
+                if (!record(s, t0 + static_cast<double>(k) * h_, out)) return WisdomHolmanOutcome::non_finite_state;
+                pending = half;
+            }
+        }
+        return WisdomHolmanOutcome::ok;
+    }
+
+    std::vector<double> gm_original_;
+
+private:
+    const Chain& c_;
+    std::vector<Op> to_real_, to_mapped_;
+    double h_;
+    Scratch w_;
+    std::vector<double> pos_, vel_, state_, acc_, jerk_;
+};
+
+}  // namespace
+
+WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, double t_end, const WisdomHolmanOptions& options) {
+    WisdomHolmanResult result;
+    Ephemeris& eph = result.ephemeris;
+    eph.bodies = s.bodies;
+    eph.gm = s.gm;
+    const std::size_t n = s.size();
+    if (!finite(s.state) || n < 2) {
+        result.outcome = WisdomHolmanOutcome::non_finite_state;
+        return result;
+    }
+    Chain c;
+    c.n = n;
+    c.quad = options.central_quadrupole ? &*options.central_quadrupole : nullptr;
+    c.original.resize(n);
+    std::iota(c.original.begin(), c.original.end(), std::size_t{0});
+    // Jacobi order: outwards by distance from the central body at the start (ties keep their order).
+    std::stable_sort(c.original.begin() + 1, c.original.end(), [&](std::size_t a, std::size_t b) {
+        return (s.position(a) - s.position(0)).norm() < (s.position(b) - s.position(0)).norm();
+    });
+    for (std::size_t j = 0; j < n; ++j) {
+        c.gm.push_back(s.gm[c.original[j]]);
+        c.eta.push_back((j > 0 ? c.eta[j - 1] : 0.0) + c.gm[j]);
+    }
+    JacobiState x0;
+    std::vector<double> pos(3 * n), vel(3 * n);
+    for (std::size_t j = 0; j < n; ++j)
+        for (std::size_t k = 0; k < 3; ++k) {
+            pos[3 * j + k] = s.state[6 * c.original[j] + k];
+            vel[3 * j + k] = s.state[6 * c.original[j] + 3 + k];
+        }
+    x0.x.resize(3 * n);
+    x0.v.resize(3 * n);
+    to_jacobi(c, pos.data(), x0.x.data());
+    to_jacobi(c, vel.data(), x0.v.data());
+
+    const double h = options.step_days > 0.0 ? options.step_days : shortest_period(s) * options.step_fraction;
+    result.step_days = h;
+    const std::vector<Stage> stages = corrector_stages(options.corrector_order);
+    const int every = std::max(1, options.node_every);
+    const double t_lo = std::min(t_begin, s.time), t_hi = std::max(t_end, s.time);
+    auto steps_to = [&](double span) {
+        std::size_t k = static_cast<std::size_t>(std::max(0.0, std::ceil(span / h)));
+        while (static_cast<double>(k) * h < span) ++k;
+        return k;
+    };
+    const std::size_t nb = steps_to(s.time - t_lo), nf = steps_to(t_hi - s.time);
+    if (nb + nf > options.max_steps) {
+        result.outcome = WisdomHolmanOutcome::too_many_steps;
+        return result;
+    }
+    Track back, fwd;
+    WisdomHolmanOutcome out = WisdomHolmanOutcome::ok;
+    if (nb > 0) {
+        Runner r(c, stages, -h);
+        r.gm_original_ = s.gm;
+        out = r.run(x0, s.time, nb, every, back);
+    }
+    if (out == WisdomHolmanOutcome::ok) {
+        Runner r(c, stages, h);
+        r.gm_original_ = s.gm;
+        out = r.run(x0, s.time, nf, every, fwd);
+    }
+    result.outcome = out;
+    result.steps = nb + nf;
+    // Join: backward nodes reversed (without their copy of the start), then forward nodes.
+    const std::size_t k_back = back.times.size();
+    for (std::size_t k = k_back; k-- > (k_back > 0 ? 1 : 0);) {
+        eph.times.push_back(back.times[k]);
+        eph.states.insert(eph.states.end(), back.states.begin() + static_cast<std::ptrdiff_t>(6 * n * k),
+                          back.states.begin() + static_cast<std::ptrdiff_t>(6 * n * (k + 1)));
+        eph.accels.insert(eph.accels.end(), back.accels.begin() + static_cast<std::ptrdiff_t>(3 * n * k),
+                          back.accels.begin() + static_cast<std::ptrdiff_t>(3 * n * (k + 1)));
+        eph.jerks.insert(eph.jerks.end(), back.jerks.begin() + static_cast<std::ptrdiff_t>(3 * n * k),
+                         back.jerks.begin() + static_cast<std::ptrdiff_t>(3 * n * (k + 1)));
+    }
+    eph.times.insert(eph.times.end(), fwd.times.begin(), fwd.times.end());
+    eph.states.insert(eph.states.end(), fwd.states.begin(), fwd.states.end());
+    eph.accels.insert(eph.accels.end(), fwd.accels.begin(), fwd.accels.end());
+    eph.jerks.insert(eph.jerks.end(), fwd.jerks.begin(), fwd.jerks.end());
+    return result;
+}
+
+}  // namespace wayward

@@ -1,0 +1,245 @@
+// The one predictor; see predict.hpp for the method.
+#include "sim/predict/predict.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+
+#include "sim/base/errors.hpp"
+#include "sim/base/parallel.hpp"
+#include "sim/base/random.hpp"
+#include "sim/base/units.hpp"
+
+namespace wayward {
+
+HiddenParameters HiddenParameters::make(std::size_t observed_planets, bool fitted_distance, bool eccentric, bool inclined) {
+    HiddenParameters l;
+    l.planets = 6 * observed_planets;
+    auto add = [&l](const std::string& n) {
+        l.names.push_back(n);
+        return static_cast<int>(l.planets + l.names.size() - 1);
+    };
+    l.i_logm = add("log_mass");
+    if (fitted_distance) l.i_a = add("log_a");  // log a: the mass-distance valley is straight in logs
+    if (eccentric) { l.i_k = add("e_cos_varpi"); l.i_h = add("e_sin_varpi"); }
+    l.i_lon = add("mean_longitude_rad");
+    if (inclined) { l.i_ix = add("tilt_x_rad"); l.i_iy = add("tilt_y_rad"); }
+    return l;
+}
+
+HiddenOrbit HiddenParameters::hidden(const Eigen::VectorXd& x) const {
+    HiddenOrbit h;
+    h.mass = std::exp(x[i_logm]);
+    h.semi_major_axis = i_a >= 0 ? std::exp(x[i_a]) : fixed_a;
+    if (i_k >= 0) { h.k = x[i_k]; h.h = x[i_h]; }
+    h.mean_longitude = x[i_lon] - mean_motion(h.semi_major_axis, gm_star + gm_from_mass(h.mass)) * t_ref;
+    if (i_ix >= 0) {
+        h.inclination = std::hypot(x[i_ix], x[i_iy]);
+        h.node = std::atan2(x[i_iy], x[i_ix]);
+    }
+    return h;
+}
+
+Eigen::VectorXd HiddenParameters::steps() const {
+    Eigen::VectorXd s = Eigen::VectorXd::Ones(static_cast<Eigen::Index>(size()));
+    s[i_logm] = 0.01;
+    if (i_a >= 0) s[i_a] = 1e-3;
+    if (i_k >= 0) s[i_k] = s[i_h] = 1e-3;
+    s[i_lon] = 1e-3;
+    if (i_ix >= 0) s[i_ix] = s[i_iy] = 1e-3;
+    return s;
+}
+
+ModelState FittedModel::state(const ModelSetup& setup, const Eigen::VectorXd& x) const {
+    ModelState s = reference;
+    unpack_planets(setup, reference, x.head(static_cast<Eigen::Index>(layout.planets)), s);
+    s.hidden = layout.hidden(x);
+    return s;
+}
+
+void ellipse_axes(double cll, double clb, double cbb, double& major, double& minor, double& orientation_deg) {
+    Eigen::Matrix2d c;
+    c << cll, clb, clb, cbb;
+    Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> es(c);
+    const Eigen::Vector2d ev = es.eigenvalues().cwiseMax(0.0);
+    major = std::sqrt(ev[1]);
+    minor = std::sqrt(ev[0]);
+    const Eigen::Vector2d u = es.eigenvectors().col(1);
+    double ang = std::atan2(u[1], u[0]) / deg;
+    if (ang < 0) ang += 180.0;
+    if (ang >= 180.0) ang -= 180.0;
+    orientation_deg = ang;
+}
+
+namespace {
+
+using Offset = std::array<double, 2>;  // arcsec, in lambda cos(beta) and beta, from the best fit
+
+struct Epochs {
+    std::vector<double> t;       // days from epoch 0
+    double t_last = 0.0;         // latest epoch
+    double t_track = 0.0;        // latest time any track reaches
+};
+
+Epochs epoch_times(const Brief& b, const std::vector<double>& epochs_year, double track_years) {
+    const double span_end = b.span_years * julian_year_days;
+    Epochs e;
+    for (double y : epochs_year) {
+        if (!(y >= b.epoch0_year && y <= b.epoch0_year + b.span_years))
+            throw InputError("", 0, "epoch_year", "the epoch " + std::to_string(y) + " lies outside the exercise's integrable span (" +
+                                                      std::to_string(b.epoch0_year) + " to " + std::to_string(b.epoch0_year + b.span_years) + ")");
+        const double t = days_from_year(b.epoch0_year, y);
+        e.t.push_back(t);
+        e.t_last = std::max(e.t_last, t);
+        e.t_track = std::max(e.t_track, std::max(t, std::min(span_end, t + track_years * julian_year_days)));
+    }
+    return e;
+}
+
+// Position, distance and track at each epoch from one model run that reaches every track's end.
+void fill_positions(const ModelSetup& setup, const ModelRun& run, const std::vector<double>& epochs_year, const Epochs& e,
+                    double track_years, double track_step_years, std::vector<Prediction>& out) {
+    const Brief& b = setup.brief;
+    const double span_end = b.span_years * julian_year_days;
+    const double step = track_step_years * julian_year_days;
+    for (std::size_t k = 0; k < out.size(); ++k) {
+        Prediction& p = out[k];
+        p.epoch_year = epochs_year[k];
+        const double t = e.t[k];
+        const SkyPosition sky = model_apparent(setup, run, *run.hidden_index, t);
+        p.lon = sky.lon;
+        p.lat = sky.lat;
+        p.distance_au = sky.distance;
+        const double lo = std::max(0.0, t - track_years * julian_year_days);
+        const double hi = std::min(span_end, t + track_years * julian_year_days);
+        for (double tt = lo; tt <= hi + 1e-9; tt += step) {
+            const SkyPosition s = model_apparent(setup, run, *run.hidden_index, tt);
+            p.track.push_back({decimal_year(b.epoch0_year, tt), s.lon, s.lat});
+        }
+    }
+}
+
+ModelRun run_best(const ModelSetup& setup, const ModelState& state, double t_end) {
+    ModelRun run = run_model(setup, state, t_end);
+    if (!run.ok() || !run.hidden_index) throw std::runtime_error("prediction: the model could not be integrated: " + run.problem());
+    return run;
+}
+
+// Offsets of one parameter vector's sky positions at every epoch from the predictions. False if the run failed.
+bool offsets_of(const ModelSetup& setup, const FittedModel& fit, const Eigen::VectorXd& x, const Epochs& e,
+                const std::vector<Prediction>& at, std::vector<Offset>& d, const PredictHooks& hooks) {
+    if (hooks.runs) ++*hooks.runs;
+    d.assign(at.size(), {NAN, NAN});
+    const ModelRun r = run_model(setup, fit.state(setup, x), e.t_last);
+    if (!r.ok() || !r.hidden_index) return false;
+    for (std::size_t k = 0; k < at.size(); ++k) {
+        const SkyPosition s = model_apparent(setup, r, *r.hidden_index, e.t[k]);
+        d[k] = {wrap_pi(s.lon - at[k].lon) * std::cos(at[k].lat) / arcsec, (s.lat - at[k].lat) / arcsec};
+    }
+    return true;
+}
+
+// Linear propagation: G = d(sky)/d(parameters) by forward differences, then G C G^T at every epoch.
+void propagate_linearly(const ModelSetup& setup, const FittedModel& fit, const Epochs& e, std::vector<Prediction>& out,
+                        const PredictHooks& hooks) {
+    const Eigen::VectorXd steps = fit.layout.steps();
+    const auto n = static_cast<Eigen::Index>(fit.best.size());
+    std::vector<Eigen::MatrixXd> G(out.size(), Eigen::MatrixXd::Zero(2, n));
+    for (Eigen::Index j = 0; j < n; ++j) {
+        Eigen::VectorXd xp = fit.best;
+        xp[j] += steps[j];
+        std::vector<Offset> d;
+        if (!offsets_of(setup, fit, xp, e, out, d, hooks)) continue;
+        for (std::size_t k = 0; k < out.size(); ++k) {
+            G[k](0, j) = d[k][0] / steps[j];
+            G[k](1, j) = d[k][1] / steps[j];
+        }
+    }
+    for (std::size_t k = 0; k < out.size(); ++k) {
+        const Eigen::Matrix2d cov = G[k] * fit.covariance * G[k].transpose();
+        Prediction& p = out[k];
+        p.cov_ll = cov(0, 0);
+        p.cov_lb = cov(0, 1);
+        p.cov_bb = cov(1, 1);
+        ellipse_axes(p.cov_ll, p.cov_lb, p.cov_bb, p.semi_major_arcsec, p.semi_minor_arcsec, p.orientation_deg);
+    }
+}
+
+// The sampled ellipse and the 90 % radius of one epoch's sample offsets.
+void summarise_samples(const std::vector<std::vector<Offset>>& d, std::size_t k, Prediction& p) {
+    std::vector<double> radii;
+    double sll = 0, slb = 0, sbb = 0;
+    for (const auto& dk : d) {
+        if (dk.size() <= k) continue;
+        const Offset& v = dk[k];
+        if (!std::isfinite(v[0]) || !std::isfinite(v[1])) continue;
+        radii.push_back(std::hypot(v[0], v[1]));
+        sll += v[0] * v[0]; slb += v[0] * v[1]; sbb += v[1] * v[1];
+    }
+    p.samples_used = static_cast<int>(radii.size());
+    if (radii.empty()) return;
+    std::sort(radii.begin(), radii.end());
+    // The ceil(0.9 n)-th smallest radius.
+    p.radius90_arcsec = radii[std::min(radii.size() - 1, static_cast<std::size_t>(std::ceil(0.9 * static_cast<double>(radii.size()))) - 1)];
+    const double m = static_cast<double>(radii.size());
+    double unused = 0.0;
+    ellipse_axes(sll / m, slb / m, sbb / m, p.sampled_semi_major_arcsec, p.sampled_semi_minor_arcsec, unused);
+}
+
+bool cancelled(const PredictHooks& hooks) { return hooks.cancel && hooks.cancel->load(); }
+
+void sample_covariance(const ModelSetup& setup, const FittedModel& fit, const Epochs& e, const PredictOptions& o,
+                       std::vector<Prediction>& out, const PredictHooks& hooks) {
+    const Eigen::MatrixXd& C = fit.covariance;
+    Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(C);
+    const Eigen::MatrixXd L = es.eigenvectors() * es.eigenvalues().cwiseMax(0.0).cwiseSqrt().asDiagonal();
+    Rng rng = make_rng(o.seed, "solve-samples");
+    std::vector<Eigen::VectorXd> xs;
+    for (int k = 0; k < o.samples; ++k) {
+        Eigen::VectorXd z(C.rows());
+        for (Eigen::Index j = 0; j < z.size(); ++j) z[j] = normal(rng);
+        xs.push_back(fit.best + L * z);
+    }
+    std::vector<std::vector<Offset>> d(xs.size());
+    std::atomic<std::size_t> sampled{0};
+    parallel_for(xs.size(), o.threads ? o.threads : 1, [&](std::size_t k) {
+        if (cancelled(hooks)) return;
+        offsets_of(setup, fit, xs[k], e, out, d[k], hooks);
+        if (hooks.report)
+            hooks.report("sampling the covariance", 0.2 + 0.8 * static_cast<double>(++sampled) / static_cast<double>(xs.size()));
+    });
+    if (cancelled(hooks)) throw Cancelled();
+    for (std::size_t k = 0; k < out.size(); ++k) summarise_samples(d, k, out[k]);
+}
+
+}  // namespace
+
+std::vector<Prediction> predict(const ModelSetup& setup, const FittedModel& fit, const std::vector<double>& epochs_year,
+                                const PredictOptions& o, const PredictHooks& hooks) {
+    if (epochs_year.empty()) return {};
+    if (fit.covariance.rows() != fit.best.size() || fit.covariance.cols() != fit.best.size() ||
+        fit.best.size() != static_cast<Eigen::Index>(fit.layout.size()))
+        throw std::runtime_error("predict: the fitted model's covariance does not match its parameters");
+    const Epochs e = epoch_times(setup.brief, epochs_year, o.track_years);
+    if (hooks.report) hooks.report("predicting the position", 0.0);
+    std::vector<Prediction> out(epochs_year.size());
+    fill_positions(setup, run_best(setup, fit.state(setup, fit.best), e.t_track), epochs_year, e, o.track_years,
+                   o.track_step_years, out);
+    propagate_linearly(setup, fit, e, out, hooks);
+    if (o.samples > 0) {
+        if (hooks.report) hooks.report("sampling the covariance", 0.2);
+        sample_covariance(setup, fit, e, o, out, hooks);
+    }
+    return out;
+}
+
+Prediction predict_position(const ModelSetup& setup, const ModelState& state, double epoch_year, double track_years,
+                            double track_step_years) {
+    const std::vector<double> years{epoch_year};
+    const Epochs e = epoch_times(setup.brief, years, track_years);
+    std::vector<Prediction> out(1);
+    fill_positions(setup, run_best(setup, state, e.t_track), years, e, track_years, track_step_years, out);
+    return out.front();
+}
+
+}  // namespace wayward

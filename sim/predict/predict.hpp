@@ -1,0 +1,102 @@
+// The one predictor: a fitted model (the observed planets' corrected states and the hidden body's parameters,
+// with their covariance) turned into sky positions, tracks, error ellipses and samples at any epochs.
+//
+// Method: the best fit is integrated once and read at every epoch (position, distance, track); the covariance
+// is propagated linearly through finite-difference derivatives of the sky position (one model run per
+// parameter, read at every epoch); and samples drawn from the covariance (each integrated once and read at every
+// epoch) give the sampled ellipse and the radius that holds 90 % of them. The solve, campaigns, the budget and
+// the viewer all call this module. Units: radians inside; arcsec for offsets, ellipses and radii.
+#pragma once
+
+#include <atomic>
+#include <cstdint>
+#include <functional>
+#include <string>
+#include <vector>
+
+#include <Eigen/Dense>
+
+#include "sim/fit/known_fit.hpp"
+#include "sim/model/model.hpp"
+
+namespace wayward {
+
+// The solve's parameter vector: the observed planets' scaled states (6 each, see pack_planets), then the hidden
+// body's parameters, of which some may be absent (a fixed distance, a circular or coplanar orbit).
+struct HiddenParameters {
+    std::size_t planets = 0;          // 6 x observed planets
+    std::vector<std::string> names;   // of the hidden-body parameters, in order
+    int i_logm = -1, i_a = -1, i_k = -1, i_h = -1, i_lon = -1, i_ix = -1, i_iy = -1;
+    // The mean longitude is fitted at a reference time in the middle of the data (where the data fix it almost
+    // independently of the distance); t_ref is that time in days from epoch 0.
+    double t_ref = 0.0;
+    double gm_star = 0.0;             // of the central pair, for the mean motion
+    double fixed_a = 0.0;             // the semi-major axis when it is not fitted
+
+    // fitted_distance: log a is a parameter; eccentric / inclined: e cos, e sin / the tilt components are.
+    static HiddenParameters make(std::size_t observed_planets, bool fitted_distance, bool eccentric, bool inclined);
+    std::size_t size() const { return planets + names.size(); }
+    HiddenOrbit hidden(const Eigen::VectorXd& x) const;
+    // Finite-difference steps for every parameter (scaled planet states 1, log mass 0.01, the others 1e-3).
+    Eigen::VectorXd steps() const;
+};
+
+// What the predictor needs of a solve: the setup (weights as the solve left them), the reference state the
+// planets' parameters are counted from, the layout, the best parameter vector and its covariance (all
+// parameters, planets included).
+struct FittedModel {
+    ModelState reference;
+    HiddenParameters layout;
+    Eigen::VectorXd best;
+    Eigen::MatrixXd covariance;
+    ModelState state(const ModelSetup& setup, const Eigen::VectorXd& x) const;
+};
+
+struct TrackPoint {
+    double year = 0.0;
+    double lon = 0.0, lat = 0.0;  // radians
+};
+
+struct Prediction {
+    double epoch_year = 0.0;
+    double lon = 0.0, lat = 0.0, distance_au = 0.0;
+    // Covariance of (lambda cos(beta), beta) in arcsec^2 by linear propagation.
+    double cov_ll = 0.0, cov_lb = 0.0, cov_bb = 0.0;
+    double semi_major_arcsec = 0.0, semi_minor_arcsec = 0.0;
+    double orientation_deg = 0.0;   // major axis, from +lambda towards +beta
+    // The same from the covariance samples.
+    double sampled_semi_major_arcsec = 0.0, sampled_semi_minor_arcsec = 0.0;
+    double radius90_arcsec = 0.0;   // holds 90% of the sampled positions (about the predicted point)
+    int samples_used = 0;
+    std::vector<TrackPoint> track;
+};
+
+struct PredictOptions {
+    double track_years = 60.0;      // track +- this around each epoch (cut at the span's ends)
+    double track_step_years = 0.25;
+    int samples = 300;              // covariance samples (0: none)
+    std::uint64_t seed = 1;         // of the samples
+    unsigned threads = 1;           // for the samples (results do not depend on it)
+};
+
+// Optional hooks: progress (stage, fraction of the prediction's work), cancellation, a count of model runs.
+struct PredictHooks {
+    std::function<void(const std::string& stage, double fraction)> report;
+    const std::atomic<bool>* cancel = nullptr;
+    std::atomic<int>* runs = nullptr;
+};
+
+// Predictions at every epoch (years), in the order given. Throws InputError for an epoch outside the
+// exercise's span, std::runtime_error when the best fit cannot be integrated.
+std::vector<Prediction> predict(const ModelSetup& setup, const FittedModel& fit, const std::vector<double>& epochs_year,
+                                const PredictOptions& options, const PredictHooks& hooks = {});
+
+// Position, distance and track of one model state at one epoch: no covariance, no samples.
+Prediction predict_position(const ModelSetup& setup, const ModelState& state, double epoch_year, double track_years,
+                            double track_step_years);
+
+// Semi-axes (sqrt of the eigenvalues) and orientation (major axis, degrees from +lambda towards +beta, in
+// [0, 180)) of the 2x2 covariance [[cll, clb], [clb, cbb]].
+void ellipse_axes(double cll, double clb, double cbb, double& major, double& minor, double& orientation_deg);
+
+}  // namespace wayward

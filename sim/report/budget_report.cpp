@@ -1,0 +1,102 @@
+// The error budget's table, CSV files and chart; see budget_report.hpp.
+#include "sim/report/budget_report.hpp"
+
+#include <cmath>
+#include <map>
+#include <sstream>
+
+#include "sim/base/format.hpp"
+#include "sim/report/plot.hpp"
+#include "sim/report/text_table.hpp"
+
+namespace wayward {
+
+namespace {
+
+std::string cell(double v) {
+    if (!std::isfinite(v)) return "-";
+    return detail::fmt(v >= 100 ? "%.1f" : v >= 1 ? "%.3f" : "%.2e", v);
+}
+}  // namespace
+
+std::string budget_table(const BudgetResult& b) {
+    constexpr std::size_t kLabel = 58;
+    std::ostringstream t;
+    t << "Error budget of " << b.scenario_name << ": error of the predicted position at " << detail::fmt("%g", b.epoch_year) << ", over "
+      << b.runs << " system(s)\n";
+    t << "Solve: distance free unless the line says otherwise; " << b.priors << "\n";
+    if (!b.what_if.empty()) t << "What-ifs: " << b.what_if << "\n";
+    t << "\n" << pad("source", kLabel, true) << pad("median", 10) << pad("90%", 10) << pad("failed", 8) << "\n";
+    t << pad("", kLabel, true) << pad("(arcmin)", 10) << pad("(arcmin)", 10) << "\n";
+    auto row = [&](const BudgetLine& l) {
+        t << (display_width(l.label) >= kLabel ? l.label + "\n" + std::string(kLabel, ' ') : pad(l.label, kLabel, true));
+        if (!l.present) t << pad("not in this scenario", 20) << "\n";
+        else t << pad(cell(l.median), 10) << pad(cell(l.p90), 10) << pad(std::to_string(l.failed), 8) << "\n";
+    };
+    for (const BudgetLine& l : b.lines)
+        if (l.key != "all-on") row(l);
+    if (std::isfinite(b.quadrature_median))
+        t << pad(b.combined.empty() ? "quadrature sum of the single sources" : "quadrature sum of the sources combined below", kLabel, true) << pad(cell(b.quadrature_median), 10) << pad(cell(b.quadrature_p90), 10) << "\n";
+    if (const BudgetLine* on = b.line("all-on")) row(*on);
+    if (b.combined.empty() && b.line("all-on"))
+        t << "(all sources on: every source above at once, the solve's choices included; --combine picks some)\n";
+    if (std::isfinite(b.radius50))
+        t << "\nSearch radius holding 50% / 90% / 99% of the all-on runs: " << cell(b.radius50) << " / " << cell(b.radius90) << " / "
+          << cell(b.radius99) << " arcmin (the scenario's field radius: " << detail::fmt("%g", b.field_radius_arcmin) << " arcmin)"
+          << (b.runs < 100 ? "; with fewer than 100 runs the 99% radius is little more than the largest error seen" : "") << "\n";
+    return t.str();
+}
+
+std::string budget_csv(const BudgetResult& b) {
+    std::ostringstream t;
+    t << "key,label,present,runs,failed,median_arcmin,p90_arcmin\n";
+    auto f = [](double v) { return std::isfinite(v) ? detail::fmt("%.6g", v) : std::string(); };
+    for (const BudgetLine& l : b.lines)
+        t << l.key << ",\"" << l.label << "\"," << (l.present ? 1 : 0) << "," << (l.present ? b.runs : 0) << "," << l.failed << ","
+          << f(l.median) << "," << f(l.p90) << "\n";
+    t << "quadrature-sum,\"quadrature sum of the single sources\",1," << b.runs << ",0," << f(b.quadrature_median) << "," << f(b.quadrature_p90) << "\n";
+    t << "search-radius-50,\"all-on runs within this radius: 50%\",1," << b.runs << ",0," << f(b.radius50) << ",\n";
+    t << "search-radius-90,\"all-on runs within this radius: 90%\",1," << b.runs << ",0," << f(b.radius90) << ",\n";
+    t << "search-radius-99,\"all-on runs within this radius: 99%\",1," << b.runs << ",0," << f(b.radius99) << ",\n";
+    return t.str();
+}
+
+std::string budget_runs_csv(const BudgetResult& b) {
+    std::ostringstream t;
+    t << "key,run,seed,separation_arcmin\n";
+    for (const BudgetLine& l : b.lines)
+        for (std::size_t r = 0; r < l.separations_arcmin.size(); ++r)
+            t << l.key << "," << r << "," << b.seeds[r] << "," << (std::isfinite(l.separations_arcmin[r]) ? detail::fmt("%.6g", l.separations_arcmin[r]) : "") << "\n";
+    return t.str();
+}
+
+void budget_plot(const BudgetResult& b, const std::string& png_path) {
+    plot::Bars bars;
+    bars.title = "Error budget of " + b.scenario_name + " at " + detail::fmt("%g", b.epoch_year) + " (" + std::to_string(b.runs) + " systems)";
+    bars.x_label = "error source (each alone)";
+    bars.y_label = "separation at the search epoch (arcmin)";
+    bars.group_labels = {"median", "90th percentile"};
+    bars.values.assign(2, {});
+    bars.log_y = true;
+    bars.width = 1200;
+    auto add = [&](const std::string& label, double med, double p90) {
+        bars.categories.push_back(label);
+        bars.values[0].push_back(med);
+        bars.values[1].push_back(p90);
+    };
+    const std::map<std::string, std::string> short_names = {
+        {"all-off", "all off"}, {"systematic", "systematic"}, {"rounding", "rounding"}, {"outliers", "outliers"},
+        {"distance-prior", "distance prior"}, {"masses", "masses"}, {"orbits", "orbits"}, {"shape-priors", "e, tilt priors"},
+        {"light-time", "light time"}, {"all-on", "all on"}};
+    for (const BudgetLine& l : b.lines) {
+        if (l.key == "all-on" || !l.present) continue;  // sources the scenario does not have get no slot
+        const auto it = short_names.find(l.key);
+        const std::string name = it != short_names.end() ? it->second : l.key.rfind("random:", 0) == 0 ? "noise: " + l.key.substr(7) : l.key;
+        add(name, l.median, l.p90);
+    }
+    add("quadrature sum", b.quadrature_median, b.quadrature_p90);
+    if (const BudgetLine* on = b.line("all-on")) add("all on", on->median, on->p90);
+    plot::save_png(bars, png_path);
+}
+
+}  // namespace wayward
