@@ -398,21 +398,7 @@ WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, doub
     }
     result.outcome = out;
     result.steps = nb + nf;
-    // Join: backward nodes reversed (without their copy of the start), then forward nodes.
-    const std::size_t k_back = back.times.size();
-    for (std::size_t k = k_back; k-- > (k_back > 0 ? 1 : 0);) {
-        eph.times.push_back(back.times[k]);
-        eph.states.insert(eph.states.end(), back.states.begin() + static_cast<std::ptrdiff_t>(6 * n * k),
-                          back.states.begin() + static_cast<std::ptrdiff_t>(6 * n * (k + 1)));
-        eph.accels.insert(eph.accels.end(), back.accels.begin() + static_cast<std::ptrdiff_t>(3 * n * k),
-                          back.accels.begin() + static_cast<std::ptrdiff_t>(3 * n * (k + 1)));
-        eph.jerks.insert(eph.jerks.end(), back.jerks.begin() + static_cast<std::ptrdiff_t>(3 * n * k),
-                         back.jerks.begin() + static_cast<std::ptrdiff_t>(3 * n * (k + 1)));
-    }
-    eph.times.insert(eph.times.end(), fwd.times.begin(), fwd.times.end());
-    eph.states.insert(eph.states.end(), fwd.states.begin(), fwd.states.end());
-    eph.accels.insert(eph.accels.end(), fwd.accels.begin(), fwd.accels.end());
-    eph.jerks.insert(eph.jerks.end(), fwd.jerks.begin(), fwd.jerks.end());
+    join_nodes(eph, back, fwd);
     return result;
 }
 

@@ -83,6 +83,30 @@ struct IntegrationResult {
 // Integrates from s.time to cover [t_begin, t_end] (backwards first when t_begin < s.time).
 IntegrationResult integrate(const System& s, double t_begin, double t_end, const IntegratorOptions& options = {});
 
+// Joins nodes recorded backwards from a start time and forwards from it into `eph` (whose gm is set), in
+// ascending time: the backward nodes reversed, without their copy of the start, then the forward nodes. `Nodes`
+// is any recorder with vectors times, states (6N per node), accels and jerks (3N per node). Both integrators
+// (the truth's and the fitting model's map) end with it.
+template <class Nodes>
+void join_nodes(Ephemeris& eph, const Nodes& back, const Nodes& fwd) {
+    const std::size_t n = eph.gm.size();
+    const std::size_t nb = back.times.size();
+    for (std::size_t k = nb; k-- > (nb > 0 ? 1 : 0);) {
+        eph.times.push_back(back.times[k]);
+        eph.states.insert(eph.states.end(), back.states.begin() + static_cast<std::ptrdiff_t>(6 * n * k),
+                          back.states.begin() + static_cast<std::ptrdiff_t>(6 * n * (k + 1)));
+        eph.accels.insert(eph.accels.end(), back.accels.begin() + static_cast<std::ptrdiff_t>(3 * n * k),
+                          back.accels.begin() + static_cast<std::ptrdiff_t>(3 * n * (k + 1)));
+        eph.jerks.insert(eph.jerks.end(), back.jerks.begin() + static_cast<std::ptrdiff_t>(3 * n * k),
+                         back.jerks.begin() + static_cast<std::ptrdiff_t>(3 * n * (k + 1)));
+    }
+    eph.times.insert(eph.times.end(), fwd.times.begin(), fwd.times.end());
+    eph.states.insert(eph.states.end(), fwd.states.begin(), fwd.states.end());
+    eph.accels.insert(eph.accels.end(), fwd.accels.begin(), fwd.accels.end());
+    eph.jerks.insert(eph.jerks.end(), fwd.jerks.begin(), fwd.jerks.end());
+}
+
+
 // Propagate a system to time t (no ephemeris kept). Throws on failure.
 System propagate(const System& s, double t, const IntegratorOptions& options = {});
 
