@@ -10,6 +10,7 @@
 #include <benchmark/benchmark.h>
 
 #include "sim/bench/bench_common.hpp"
+#include "sim/bench/bench_solve.hpp"
 #include "sim/base/units.hpp"
 #include "sim/model/model.hpp"
 #include "sim/model/wisdom_holman.hpp"
@@ -99,14 +100,7 @@ void bm_model_solve(benchmark::State& state, const std::string& scenario, const 
     SolveOptions opt;
     opt.threads = 1;
     opt.model.integrator = integrator;
-    Solution sol;
-    for (auto _ : state) {
-        sol = solve(ex, opt);
-        benchmark::DoNotOptimize(sol.minima.data());
-    }
-    state.counters["model_runs"] = benchmark::Counter(static_cast<double>(sol.model_runs));
-    state.counters["per_model_run"] =
-        benchmark::Counter(static_cast<double>(sol.model_runs), benchmark::Counter::kIsIterationInvariantRate | benchmark::Counter::kInvert);
+    const Solution sol = timed_solve(state, ex, opt);
     char label[200];
     std::snprintf(label, sizeof label, "chi2 %.6g, a %.4f au, mass %.4e, lambda %.6f rad", sol.chi2, sol.best.semi_major_axis,
                   sol.best.mass, sol.best.mean_longitude);

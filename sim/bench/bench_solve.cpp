@@ -71,16 +71,7 @@ void bm_solve(benchmark::State& state, const std::string& scenario) {
     const Exercise& ex = exercise_for(scenario, seed).exercise;
     SolveOptions opt;
     opt.threads = static_cast<unsigned>(state.range(0));
-    Solution sol;
-    for (auto _ : state) {
-        sol = solve(ex, opt);
-        // A pointer, not the double chi2: DoNotOptimize on a floating-point lvalue lost its value here under
-        // GCC 12 -O3 (the label then showed a chi2 of 0).
-        benchmark::DoNotOptimize(sol.minima.data());
-    }
-    state.counters["model_runs"] = benchmark::Counter(static_cast<double>(sol.model_runs));
-    state.counters["per_model_run"] =
-        benchmark::Counter(static_cast<double>(sol.model_runs), benchmark::Counter::kIsIterationInvariantRate | benchmark::Counter::kInvert);
+    const Solution sol = timed_solve(state, ex, opt);
     char label[160];
     std::snprintf(label, sizeof label, "chi2 %.4g for %zu dof, best a %.2f au, %zu minima", sol.chi2, sol.dof,
                   sol.best.semi_major_axis, sol.minima.size());
@@ -88,6 +79,20 @@ void bm_solve(benchmark::State& state, const std::string& scenario) {
 }
 
 }  // namespace
+
+Solution timed_solve(benchmark::State& state, const Exercise& ex, const SolveOptions& options) {
+    Solution sol;
+    for (auto _ : state) {
+        sol = solve(ex, options);
+        // A pointer, not the double chi2: DoNotOptimize on a floating-point lvalue lost its value here under
+        // GCC 12 -O3 (the label then showed a chi2 of 0).
+        benchmark::DoNotOptimize(sol.minima.data());
+    }
+    state.counters["model_runs"] = benchmark::Counter(static_cast<double>(sol.model_runs));
+    state.counters["per_model_run"] =
+        benchmark::Counter(static_cast<double>(sol.model_runs), benchmark::Counter::kIsIterationInvariantRate | benchmark::Counter::kInvert);
+    return sol;
+}
 
 void register_solve_benchmarks() {
     for (const char* name : bundled_scenarios) {
