@@ -6,6 +6,8 @@
 
 #include "sim/base/errors.hpp"
 #include "sim/truth/generate.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/base/units.hpp"
 #include "observe_helpers.hpp"
 #include "test_helpers.hpp"
 
@@ -37,5 +39,42 @@ TEST_CASE("plausibility: crossing orbits and tight spacing are refused, drawn sy
         CHECK(check_spacing(t, sc.rules).ok);
         CHECK(check_dynamics(t, sc.rules, run).ok);
         CHECK(t.hidden_index().has_value());
+    }
+}
+
+TEST_CASE("hidden_clear_of_star redraws until the hidden body is outside the elongation limit at the search epoch") {
+    Scenario sc = load_scenario(testing::source_path("scenarios/default.toml"));
+    REQUIRE(sc.rules.hidden_clear_of_star);
+    // Over seeds 1-8 the rule holds for every accepted system, and the same draws without the rule put at
+    // least one hidden body inside a wide limit (which the rule then refuses).
+    sc.plan.elongation_limit_deg = 60.0;
+    Scenario free = sc;
+    free.rules.hidden_clear_of_star = false;
+    int refused_without_rule = 0;
+    for (std::uint64_t seed = 1; seed <= 8; ++seed) {
+        IntegrationResult run;
+        const Truth t = generate(sc, seed, &run);
+        CHECK(check_search_view(t, sc, run).ok);
+        const std::size_t h = *t.hidden_index();
+        const double days = days_from_year(t.epoch0_year, sc.plan.search_epochs_year.front());
+        CHECK(elongation(run.ephemeris, t.system.observer_index(), h, days) / deg > 60.0);
+        IntegrationResult run_free;
+        const Truth u = generate(free, seed, &run_free);
+        if (!check_search_view(u, sc, run_free).ok) ++refused_without_rule;
+    }
+    CHECK(refused_without_rule > 0);
+}
+
+TEST_CASE("hidden_clear_of_star that no draw can meet fails naming the body and the rule") {
+    Scenario sc = load_scenario(testing::source_path("scenarios/default.toml"));
+    sc.plan.elongation_limit_deg = 179.0;  // nothing is that far from the star
+    sc.rules.max_draws = 3;
+    try {
+        generate(sc, 1);
+        FAIL("a body inside the limit was accepted");
+    } catch (const InputError& e) {
+        const std::string what = e.what();
+        CHECK(what.find("Mirrow") != std::string::npos);
+        CHECK(what.find("hidden_clear_of_star") != std::string::npos);
     }
 }

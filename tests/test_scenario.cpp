@@ -72,7 +72,8 @@ TEST_CASE("a good scenario parses and builds") {
 
 TEST_CASE("the bundled default scenario loads") {
     const Scenario sc = load_scenario(testing::source_path("scenarios/default.toml"));
-    CHECK(sc.all_fixed());
+    CHECK_FALSE(sc.all_fixed());  // the hidden body is drawn, so the repository does not hold the answer
+    CHECK(sc.rules.hidden_clear_of_star);
     CHECK(sc.bodies.size() >= 5);
 }
 

@@ -106,6 +106,9 @@ struct PlausibilityRules {
     double min_hill_separation = 8.0;   // mutual Hill radii between neighbours
     int max_draws = 200;
     double max_energy_error = 1e-9;
+    // Redraw until every hidden body stands farther from the star than the elongation limit at every search
+    // epoch, so that the exercise can end at the telescope (off by default: a body behind the star is a lesson too).
+    bool hidden_clear_of_star = false;
 };
 
 struct Scenario {

@@ -284,6 +284,7 @@ Scenario parse_scenario(const std::string& text, const std::string& file) {
             // integration and the run would grind through all of them.
             if (!(sc.rules.max_energy_error >= 1e-12 && sc.rules.max_energy_error <= 1.0))
                 p.fail("max_energy_error", "must be in [1e-12, 1] (a tighter limit rejects every draw)");
+            sc.rules.hidden_clear_of_star = p.boolean("hidden_clear_of_star").value_or(sc.rules.hidden_clear_of_star);
             p.finish();
         }
         r.finish();

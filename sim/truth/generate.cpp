@@ -189,6 +189,26 @@ static void draw_surfaces(const Scenario& sc, std::uint64_t seed, Truth& t) {
     }
 }
 
+Plausibility check_search_view(const Truth& t, const Scenario& sc, const IntegrationResult& run) {
+    if (!sc.rules.hidden_clear_of_star || !sc.plan.present) return {};
+    const Ephemeris& eph = run.ephemeris;
+    const std::size_t observer = t.system.observer_index();
+    for (std::size_t i = 0; i < t.system.bodies.size(); ++i) {
+        if (t.system.bodies[i].role != Role::hidden) continue;
+        for (double year : sc.plan.search_epochs_year) {
+            const double days = std::clamp(days_from_year(t.epoch0_year, year), eph.t_begin(), eph.t_end());
+            const double e_deg = elongation(eph, observer, i, days) / deg;
+            if (!(e_deg > sc.plan.elongation_limit_deg)) {
+                std::ostringstream msg;
+                msg << t.system.bodies[i].name << " stands " << e_deg << " deg from the star at the search epoch " << year
+                    << ", inside the elongation limit of " << sc.plan.elongation_limit_deg << " deg (hidden_clear_of_star)";
+                return {false, msg.str()};
+            }
+        }
+    }
+    return {};
+}
+
 // Light from 100 au takes 0.58 d; the ephemeris starts this early so every light-time correction is covered.
 constexpr double light_time_margin_days = 2.0;
 
@@ -204,6 +224,7 @@ Truth generate(const Scenario& sc, std::uint64_t seed, IntegrationResult* run, c
             // A short margin before epoch 0 lets light-time corrections reach back from the first observations.
             IntegrationResult r = integrate(t.system, -light_time_margin_days, t.span_days, options);
             p = check_dynamics(t, sc.rules, r);
+            if (p.ok) p = check_search_view(t, sc, r);
             if (p.ok) {
                 draw_surfaces(sc, seed, t);
                 if (run) *run = std::move(r);

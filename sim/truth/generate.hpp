@@ -53,6 +53,9 @@ struct Plausibility {
 Plausibility check_spacing(const Truth& t, const PlausibilityRules& rules);
 // The check integration over the span: close encounters and energy error.
 Plausibility check_dynamics(const Truth& t, const PlausibilityRules& rules, const IntegrationResult& run);
+// With the scenario's hidden_clear_of_star rule: every hidden body farther from the star than the elongation
+// limit at every search epoch (otherwise always plausible).
+Plausibility check_search_view(const Truth& t, const Scenario& sc, const IntegrationResult& run);
 
 // Draws until a plausible system is found, up to the scenario's limit; throws InputError naming the scenario
 // and the condition it cannot meet. `run` (optional) receives the truth integration over [0, span].
