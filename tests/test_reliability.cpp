@@ -171,6 +171,50 @@ TEST_CASE("reliability: two `new` runs into one folder never mix; a killed run's
     fs::remove_all(dir);
 }
 
+TEST_CASE("reliability: residuals, solve, score and search sweep a killed run's temporaries and wait for another writer") {
+    const fs::path dir = scratch("sweep");
+    const fs::path ex = make_exercise(dir);
+    // Leftovers of killed runs, one per command's output; each command sweeps its folder when it writes.
+    const std::pair<std::string, fs::path> cases[] = {
+        {"residuals " + ex.string() + " --quiet", ex / (std::string(".residuals.csv") + temporary_marker + "Zz09Yy")},
+        {"solve " + ex.string() + " --quiet --samples 20 --starts 2", ex / (std::string(".solution.toml") + temporary_marker + "Qq77Rr")},
+        {"score " + ex.string(), ex / (std::string(".luck.csv") + temporary_marker + "Pp55Oo")},
+        {"search " + ex.string() + " --nights 1", ex / "search" / (std::string(".log.csv") + temporary_marker + "Mm33Nn")}};
+    for (const auto& [command, stale] : cases) {
+        CAPTURE(command);
+        fs::create_directories(stale.parent_path());
+        write(stale, std::string(50000, 'x'));
+        const fs::path other = stale.parent_path() / ".not-ours.tmp";  // not ours by name: left alone
+        write(other, "keep");
+        const auto r = run_cli(command);
+        CHECK(r.status == 0);
+        CHECK_FALSE(fs::exists(stale));
+        CHECK(read(other) == "keep");
+    }
+    // A writer holding the folder: a bounded wait, then a clear refusal naming the folder; released, it goes on.
+    {
+        const WriterLock held(ex.string(), "DIR");
+        CHECK_THROWS_WITH_AS(WriterLock(ex.string(), "DIR", LockWait::wait, 0.3),
+                             doctest::Contains("another wayward run is writing in this folder"), InputError);
+    }
+    const WriterLock after(ex.string(), "DIR", LockWait::wait, 0.3);
+    fs::remove_all(dir);
+}
+
+TEST_CASE("reliability: a link planted at the search folder is refused; nothing is written through it") {
+    const fs::path dir = scratch("searchlink");
+    const fs::path ex = make_exercise(dir);
+    REQUIRE(run_cli("solve " + ex.string() + " --quiet --samples 20 --starts 2").status == 0);
+    const fs::path elsewhere = dir / "elsewhere";
+    fs::create_directories(elsewhere);
+    fs::create_directory_symlink(elsewhere, ex / "search");
+    const auto r = run_cli("search " + ex.string() + " --nights 1");
+    CHECK(r.status == 2);
+    CHECK(contains(r.output, "symbolic link"));
+    CHECK(fs::is_empty(elsewhere));
+    fs::remove_all(dir);
+}
+
 TEST_CASE("reliability: an answer key without its tables, or empty, is refused with a message, not a crash") {
     const fs::path dir = scratch("key");
     const fs::path ex = make_exercise(dir);

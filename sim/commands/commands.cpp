@@ -120,6 +120,9 @@ int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& pr
     const KnownFit fit = fit_known(ex, mo, [&](const std::string& line) {
         if (!args.quiet) progress << line << "\n" << std::flush;
     });
+    // The write phase holds the folder (waiting for another writer) and first sweeps leftovers of killed runs.
+    const WriterLock lock(args.dir, "DIR", LockWait::wait);
+    remove_stale_temporaries(args.dir);
     write_file_atomic(args.dir + "/residuals.csv", residuals_csv(fit.setup, fit.residuals));
     residuals_plot(fit.setup, fit.residuals, args.dir + "/residuals.png",
                    "O−C of the known-planets-only model: " + ex.brief.scenario_name);
@@ -187,6 +190,8 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
         throw as_flag_error(e);
     }
     bar.finish();
+    const WriterLock lock(args.dir, "DIR", LockWait::wait);  // as in residuals: one writer, leftovers swept
+    remove_stale_temporaries(args.dir);
     write_file_atomic(args.dir + "/solution.toml", solution_toml(s));
 
     out << std::setprecision(4);
@@ -258,6 +263,8 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
     // A prediction of the trainee's own gets files of its own, so it never overwrites the solver's luck curve.
     const std::string stem = (own || !args.prediction_file.empty()) ? "luck_own" : "luck";
     for (const char* ext : {".csv", ".png"}) refuse_link_at(args.dir + "/" + stem + ext);
+    const WriterLock lock(args.dir, "DIR", LockWait::wait);  // as in residuals: one writer, leftovers swept
+    remove_stale_temporaries(args.dir);
     write_luck(sc, args.dir + "/" + stem + ".csv", args.dir + "/" + stem + ".png", "Luck of the epoch: " + ex.brief.scenario_name);
 
     out << std::fixed << std::setprecision(3);

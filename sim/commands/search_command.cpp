@@ -127,8 +127,14 @@ int run_search(const SearchArgs& args, std::ostream& out) {
 
     const std::string dir = args.dir + "/search";
     std::error_code ec;
+    // A link planted at search/ would carry every file written below out of the exercise folder.
+    if (std::filesystem::is_symlink(dir, ec))
+        throw InputError(dir, 0, "DIR", "is a symbolic link; remove it (the search writes its files in a real folder)");
     std::filesystem::create_directories(dir, ec);
     if (ec) throw InputError(dir, 0, "", "cannot create the folder: " + ec.message());
+    if (!std::filesystem::is_directory(dir, ec)) throw InputError(dir, 0, "DIR", "is not a folder");
+    const WriterLock lock(dir, "DIR", LockWait::wait);  // one writer at a time; leftovers of killed runs swept
+    remove_stale_temporaries(dir);
     write_file_atomic(dir + "/plan.csv", search_plan_csv(r));
     write_file_atomic(dir + "/log.csv", search_log_csv(r, ex.brief.epoch0_year));
     save_search_png(r, tel, ex.brief.epoch0_year, dir + "/search.png");

@@ -1,6 +1,7 @@
 // Atomic, link-safe file output and the folder lock; see fileio.hpp.
 #include "sim/io/fileio.hpp"
 
+#include <algorithm>
 #include <cerrno>
 #include <cstdio>
 #include <cstdlib>
@@ -91,7 +92,7 @@ int remove_stale_temporaries(const std::string& dir) {
     return removed;
 }
 
-WriterLock::WriterLock(const std::string& dir, const std::string& field) {
+WriterLock::WriterLock(const std::string& dir, const std::string& field, LockWait how, double max_wait_seconds) {
     const std::string path = dir + "/.wayward.lock";
     fd_ = ::open(path.c_str(), O_RDWR | O_CREAT | O_NOFOLLOW | O_CLOEXEC, 0600);
     if (fd_ < 0) {
@@ -104,7 +105,14 @@ WriterLock::WriterLock(const std::string& dir, const std::string& field) {
         ::close(fd_);
         throw InputError(path, 0, field, "the folder's lock file is not a regular file");
     }
-    if (::flock(fd_, LOCK_EX | LOCK_NB) != 0) {
+    // Waiting polls the non-blocking lock: a bounded wait never hangs behind a run that holds the folder forever.
+    const int polls = how == LockWait::wait ? static_cast<int>(std::max(0.0, max_wait_seconds) * 10.0) : 0;
+    int rc = ::flock(fd_, LOCK_EX | LOCK_NB);
+    for (int k = 0; rc != 0 && errno == EWOULDBLOCK && k < polls; ++k) {
+        ::usleep(100000);
+        rc = ::flock(fd_, LOCK_EX | LOCK_NB);
+    }
+    if (rc != 0) {
         const int err = errno;
         ::close(fd_);
         if (err == EWOULDBLOCK)

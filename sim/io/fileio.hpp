@@ -26,10 +26,13 @@ inline constexpr const char* temporary_marker = ".wayward-tmp-";
 int remove_stale_temporaries(const std::string& dir);
 
 // An exclusive advisory lock (flock) on DIR/.wayward.lock, held for the object's lifetime. The lock file is
-// opened with O_NOFOLLOW, so a planted link is refused. Throws InputError naming `field` when another run holds it.
+// opened with O_NOFOLLOW, so a planted link is refused. Throws InputError naming `field` when another run holds it:
+// at once (`fail`, for runs that write for long: new, campaigns), or after waiting up to `max_wait_seconds`
+// (`wait`, for commands that hold the lock only while they write their few files and sweep leftovers).
+enum class LockWait { fail, wait };
 class WriterLock {
 public:
-    WriterLock(const std::string& dir, const std::string& field);
+    WriterLock(const std::string& dir, const std::string& field, LockWait how = LockWait::fail, double max_wait_seconds = 120.0);
     ~WriterLock();
     WriterLock(const WriterLock&) = delete;
     WriterLock& operator=(const WriterLock&) = delete;
