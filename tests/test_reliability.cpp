@@ -215,6 +215,67 @@ TEST_CASE("reliability: a link planted at the search folder is refused; nothing 
     fs::remove_all(dir);
 }
 
+TEST_CASE("reliability: two exercises given one --key-out never share or replace a key") {
+    const fs::path dir = scratch("keyout");
+    const fs::path keys = dir / "keys";
+    const std::string w = std::string(WAYWARD_CLI) + " new " + tutorial() + " --key-out " + keys.string();
+    // At the same time: one wins, the other is refused; the winner's brief seals the key that is there.
+    const auto r = run_command("(" + w + " --seed 3 --out " + (dir / "a").string() + " >" + (dir / "a.txt").string() + " 2>&1 & a=$!; " +
+                               w + " --seed 4 --out " + (dir / "b").string() + " >" + (dir / "b.txt").string() +
+                               " 2>&1 & b=$!; wait $a; sa=$?; wait $b; echo $sa $?)");
+    const std::string statuses = r.output.substr(0, r.output.find('\n'));
+    CHECK((statuses == "0 2" || statuses == "2 0"));
+    const fs::path winner = dir / (statuses == "0 2" ? "a" : "b");
+    const fs::path loser = dir / (statuses == "0 2" ? "b" : "a");
+    const std::string loser_text = read(dir / (statuses == "0 2" ? "b.txt" : "a.txt"));
+    CHECK(contains(loser_text, "--key-out"));
+    CHECK_FALSE(fs::exists(loser / "brief.toml"));
+    const Brief b = load_brief((winner / "brief.toml").string());
+    CHECK(sha256_hex(read(keys / "answer_key.toml")) == b.answer_key_sha256);
+    // One after the other: the second is refused unless told to replace the key.
+    const auto again = run_cli("new " + tutorial() + " --seed 5 --out " + (dir / "c").string() + " --key-out " + keys.string());
+    CHECK(again.status == 2);
+    CHECK(contains(again.output, "already holds an answer key"));
+    CHECK(sha256_hex(read(keys / "answer_key.toml")) == b.answer_key_sha256);
+    CHECK_FALSE(fs::exists(dir / "c"));
+    fs::remove_all(dir);
+}
+
+// An address-space cap (ulimit -v) is how the system says "out of memory" to a process; the sanitizers reserve far
+// more address space than any cap small enough to test, so the check runs in the plain builds only.
+#if defined(__has_feature)
+#if __has_feature(address_sanitizer)
+#define WAYWARD_TEST_ASAN 1
+#endif
+#endif
+#if !defined(__SANITIZE_ADDRESS__) && !defined(WAYWARD_TEST_ASAN)
+TEST_CASE("reliability: out of memory is exit status 3 with a plain message, never an abort, and leaves no temporary") {
+    const fs::path dir = scratch("oom");
+    const fs::path ex = make_exercise(dir);
+    // Address-space caps from too small to start (the loader refuses: 127) to enough for the solve (0); in between
+    // the solve runs out of memory somewhere (a thread, an integration, a matrix) and must say so with status 3.
+    int out_of_memory = 0;
+    for (int kb = 20000; kb <= 60000; kb += 2500) {
+        CAPTURE(kb);
+        fs::remove(ex / "solution.toml");
+        const auto r = run_command("ulimit -v " + std::to_string(kb) + "; " + std::string(WAYWARD_CLI) + " solve " + ex.string() +
+                                   " --quiet 2>&1; echo status=$?");
+        const bool ok = contains(r.output, "status=0"), oom = contains(r.output, "status=3"), no_start = contains(r.output, "status=127");
+        CHECK((ok || oom || no_start));
+        if (oom) {
+            ++out_of_memory;
+            CHECK(contains(r.output, "out of memory"));
+            CHECK_FALSE(fs::exists(ex / "solution.toml"));
+        }
+        CHECK_FALSE(contains(r.output, "terminate called"));
+        CHECK_FALSE(contains(r.output, "std::bad_alloc"));
+        for (const auto& e : fs::directory_iterator(ex)) CHECK(e.path().filename().string().find(temporary_marker) == std::string::npos);
+    }
+    CHECK(out_of_memory > 0);
+    fs::remove_all(dir);
+}
+#endif
+
 TEST_CASE("reliability: an answer key without its tables, or empty, is refused with a message, not a crash") {
     const fs::path dir = scratch("key");
     const fs::path ex = make_exercise(dir);

@@ -1,5 +1,5 @@
 // A minimal parallel loop over indices with std::thread: each index is processed exactly once, results are
-// written by index, so the outcome never depends on the number of threads.
+// written by index, so the outcome never depends on the number of threads (nor on how many could be started).
 #pragma once
 
 #include <algorithm>
@@ -34,13 +34,16 @@ void parallel_for(std::size_t n, unsigned threads, Fn&& fn) {
             }
         }
     };
-    if (threads == 1) {
-        worker();
-    } else {
-        std::vector<std::thread> pool;
-        for (unsigned t = 0; t < threads; ++t) pool.emplace_back(worker);
-        for (auto& t : pool) t.join();
+    // The calling thread works too. When the system cannot start another thread (no memory, a process limit), the
+    // loop goes on with those it has: the results are the same, and no thread is left unjoined to abort the run.
+    std::vector<std::thread> pool;
+    try {
+        pool.reserve(threads - 1);
+        for (unsigned t = 1; t < threads; ++t) pool.emplace_back(worker);
+    } catch (...) {
     }
+    worker();
+    for (auto& t : pool) t.join();
     if (error) std::rethrow_exception(error);
 }
 

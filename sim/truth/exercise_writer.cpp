@@ -6,6 +6,7 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
+#include <optional>
 #include <sstream>
 
 #include <toml++/toml.h>
@@ -115,7 +116,10 @@ void write_exercise(const ExercisePaths& paths, const Scenario& sc, const Truth&
         write_exercise_locked(paths, sc, truth, obs, brief_in, eph, force, made_key_dir);
     } catch (...) {
         // A refusal or a failure leaves no empty folder of ours behind (remove() takes only empty folders).
-        if (made_key_dir) fs::remove(paths.key_dir, ec);
+        if (made_key_dir) {
+            fs::remove(paths.key_dir + "/.wayward.lock", ec);
+            fs::remove(paths.key_dir, ec);
+        }
         if (made_dir) {
             fs::remove(paths.dir + "/.wayward.lock", ec);
             fs::remove(paths.dir, ec);
@@ -140,6 +144,13 @@ void write_exercise_locked(const ExercisePaths& paths, const Scenario& sc, const
     made_key_dir = fs::create_directories(paths.key_dir, ec);
     if (ec) throw InputError(paths.key_dir, 0, "--key-out", "cannot create the folder: " + ec.message());
     if (!fs::is_directory(paths.key_dir, ec)) throw InputError(paths.key_dir, 0, "--key-out", "is not a folder");
+    // The key folder is locked too: two exercises given one --key-out never interleave their keys.
+    std::optional<WriterLock> key_lock;
+    if (!fs::equivalent(paths.key_dir, paths.dir, ec)) key_lock.emplace(paths.key_dir, "--key-out");
+    refuse_link_at(paths.answer_key(), "--key-out");
+    if (fs::exists(paths.answer_key()) && !force)
+        throw InputError(paths.key_dir, 0, "--key-out",
+                         "already holds an answer key (of another exercise?); use --force to replace it, or another --key-out");
     // A key folder we make is the trainer's alone: owner-only, like the key files in it.
     if (made_key_dir) {
         fs::permissions(paths.key_dir, fs::perms::owner_all, fs::perm_options::replace, ec);
