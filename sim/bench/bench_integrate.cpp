@@ -200,6 +200,8 @@ int export_truth_run(const TruthExportOptions& o) {
     const double span = default_span_days();
     IntegratorOptions opt;
     opt.max_step_fraction = o.step_fraction;
+    opt.method = o.method;
+    opt.rel_tol = o.rel_tol;
     std::vector<double> seconds, cpu_seconds;
     IntegrationResult run;
     for (int k = 0; k < std::max(1, o.repeats); ++k) {

@@ -18,7 +18,7 @@ namespace {
 
 void print_usage() {
     std::cout << "wayward_bench [Google Benchmark flags, e.g. --benchmark_filter=REGEX]\n"
-                 "wayward_bench --export-truth=FILE [--repeats=N] [--step-fraction=X] [--reference-step-fraction=X]\n"
+                 "wayward_bench --export-truth=FILE [--repeats=N] [--step-fraction=X] [--method=NAME] [--rel-tol=X] [--reference-step-fraction=X]\n"
                  "  (step fractions: the step cap as a fraction of the shortest orbital period)\n";
 }
 
@@ -47,6 +47,10 @@ int main(int argc, char** argv) {
                 exp.repeats = std::stoi(v);
             } else if (flag_value(arg, "--step-fraction", v)) {
                 exp.step_fraction = std::stod(v);
+            } else if (flag_value(arg, "--method", v)) {
+                exp.method = v;
+            } else if (flag_value(arg, "--rel-tol", v)) {
+                exp.rel_tol = std::stod(v);
             } else if (flag_value(arg, "--reference-step-fraction", v)) {
                 exp.reference_step_fraction = std::stod(v);
             } else {

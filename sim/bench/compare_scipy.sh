@@ -3,7 +3,7 @@
 # go: wayward_bench --export-truth writes the default scenario's initial state, GMs and its own timed runs,
 # then scipy_truth.py integrates the same state and prints both times, their ratio and both accuracies.
 # Usage: sim/bench/compare_scipy.sh [--build DIR] [scipy_truth.py options, e.g. --repeats 3 --atol 1e-15]
-# Environment: REPEATS (timed runs of ours, default 5).
+# Environment: REPEATS (timed runs of ours, default 5); OURS (options of our run, e.g. "--method=bulirsch-stoer --rel-tol=1e-14").
 set -eu
 here=$(cd "$(dirname "$0")" && pwd)
 build="$here/../../build/bench"
@@ -23,5 +23,5 @@ if ! "$python" -c "import scipy" 2>/dev/null; then
 fi
 truth=$(mktemp "${TMPDIR:-/tmp}/wayward_truth.XXXXXX")
 trap 'rm -f "$truth"' EXIT
-"$bin" --export-truth="$truth" --repeats="${REPEATS:-5}"
+"$bin" --export-truth="$truth" --repeats="${REPEATS:-5}" ${OURS:-}
 "$python" "$here/scipy_truth.py" "$truth" "$@"
