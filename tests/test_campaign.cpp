@@ -14,6 +14,7 @@
 #include "sim/exercise/exercise.hpp"
 #include "sim/truth/exercise_writer.hpp"
 #include "sim/truth/observe.hpp"
+#include "sim/base/statistics.hpp"
 #include "sim/base/units.hpp"
 #include "test_helpers.hpp"
 
@@ -239,7 +240,7 @@ TEST_CASE("campaign rows: a row survives formatting and parsing, and a damaged r
     r.unit_seconds = 1.5;
     const std::string line = format_case_row(r);
     CHECK(line.back() == '\n');
-    CHECK(std::count(line.begin(), line.end(), ',') == 25);
+    CHECK(std::count(line.begin(), line.end(), ',') == 28);
     const CaseRow back = parse_case_row(line.substr(0, line.size() - 1), "cases.csv", 5);
     CHECK(format_case_row(back) == line);
     CHECK(back.inside_sigma(2.0));
@@ -253,7 +254,7 @@ TEST_CASE("campaign rows: a row survives formatting and parsing, and a damaged r
     failed.mahalanobis.reset();
     failed.hit = false;
     const std::string fline = format_case_row(failed);
-    CHECK(std::count(fline.begin(), fline.end(), ',') == 25);
+    CHECK(std::count(fline.begin(), fline.end(), ',') == 28);
     const CaseRow fback = parse_case_row(fline.substr(0, fline.size() - 1), "cases.csv", 6);
     CHECK_FALSE(fback.ok);
     CHECK_FALSE(fback.hit);
@@ -284,4 +285,90 @@ TEST_CASE("bootstrap interval of a success rate") {
     const RateInterval again = bootstrap_rate(half, 4000, 0.95, 2);
     CHECK(again.lo == h.lo);
     CHECK(again.hi == h.hi);
+}
+
+TEST_CASE("campaign rows with the search: found, night and hours survive; inconsistent cells are named") {
+    CaseRow r;
+    r.index = 3;
+    r.scenario = "quick";
+    r.seed = 11;
+    r.settings = "free";
+    r.epoch_year = 2005;
+    r.separation_arcmin = 3.0;
+    r.field_radius_arcmin = 120;
+    r.searched = true;
+    r.search_found = true;
+    r.search_night = 4;
+    r.search_hours = 12.25;
+    const std::string line = format_case_row(r);
+    const CaseRow back = parse_case_row(line.substr(0, line.size() - 1), "cases.csv", 2);
+    CHECK(back.searched);
+    CHECK(back.search_found);
+    CHECK(back.search_night == 4);
+    CHECK(back.search_hours == 12.25);
+    CHECK(format_case_row(back) == line);
+    CaseRow missed = r;
+    missed.search_found = false;
+    missed.search_night = 0;
+    const std::string mline = format_case_row(missed);
+    CHECK(mline.find(",0,,12.25,") != std::string::npos);
+    CHECK_FALSE(parse_case_row(mline.substr(0, mline.size() - 1), "cases.csv", 2).search_found);
+    CaseRow off = r;
+    off.searched = false;
+    const std::string oline = format_case_row(off);
+    CHECK(oline.find(",,,,") != std::string::npos);  // three empty search cells and an empty note
+    CHECK_FALSE(parse_case_row(oline.substr(0, oline.size() - 1), "cases.csv", 2).searched);
+    // A night without "found", or a found row without a night, is a damaged row named by its field.
+    std::string bad = mline.substr(0, mline.size() - 1);
+    bad.replace(bad.find(",0,,12.25,"), 10, ",0,3,12.25,");
+    try {
+        parse_case_row(bad, "cases.csv", 7);
+        FAIL("a night without a discovery was accepted");
+    } catch (const InputError& e) {
+        CHECK(e.line() == 7);
+        CHECK(e.field() == "search_night");
+    }
+}
+
+TEST_CASE("campaign spec: the [search] table") {
+    const fs::path dir = temp_dir("search-spec");
+    const std::string quick = testing::source_path("scenarios/quick.toml");
+    const fs::path spec = dir / "spec.toml";
+    write(spec, spec_text(quick));
+    CHECK_FALSE(load_campaign_spec(spec.string()).search.on);  // off unless asked for
+    write(spec, spec_text(quick, "2", "offsets_years = [0, 10]", "\n[search]\nnights = 12\nstrategy = \"spiral\"\n"));
+    const CampaignSpec on = load_campaign_spec(spec.string());
+    CHECK(on.search.on);
+    CHECK(on.search.nights == 12);
+    CHECK(on.search.strategy == "spiral");
+    for (const auto& [extra, field] : std::vector<std::pair<std::string, std::string>>{
+             {"\n[search]\nnights = 0\n", "search.nights"},
+             {"\n[search]\nnights = 400\n", "search.nights"},
+             {"\n[search]\nstrategy = \"plan\"\n", "search.strategy"},
+             {"\n[search]\nstrategy = \"zigzag\"\n", "search.strategy"},
+             {"\n[search]\nnightz = 3\n", "search.nightz"}}) {
+        write(spec, spec_text(quick, "2", "offsets_years = [0, 10]", extra));
+        const Refusal r = refusal_of(spec);
+        CAPTURE(extra);
+        CHECK(r.file == spec.string());
+        CHECK(r.field == field);
+        CHECK(r.line > 0);
+    }
+    fs::remove_all(dir);
+}
+
+TEST_CASE("Wilson interval of a proportion") {
+    // Newcombe (1998), Statistics in Medicine 17, 857, Table I, method 3 (Wilson score), from memory of the table:
+    // 81/263 -> 0.2553, 0.3662; 15/148 -> 0.0624, 0.1605; 0/20 -> 0, 0.1611; 1/29 -> 0.0061, 0.1718.
+    const WilsonInterval a = wilson_interval(81, 263), b = wilson_interval(15, 148), c = wilson_interval(0, 20),
+                         d = wilson_interval(1, 29);
+    CHECK(std::abs(a.lo - 0.2553) < 5e-5);
+    CHECK(std::abs(a.hi - 0.3662) < 5e-5);
+    CHECK(std::abs(b.lo - 0.0624) < 5e-5);
+    CHECK(std::abs(b.hi - 0.1605) < 5e-5);
+    CHECK(c.lo == 0.0);
+    CHECK(std::abs(c.hi - 0.1611) < 5e-5);
+    CHECK(std::abs(d.lo - 0.0061) < 5e-5);
+    CHECK(std::abs(d.hi - 0.1718) < 5e-5);
+    CHECK(std::isnan(wilson_interval(0, 0).lo));
 }

@@ -5,6 +5,7 @@
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <string>
 #include <memory>
 
 #include "sim/base/random.hpp"
@@ -158,7 +159,7 @@ TEST_CASE("over many random plans no pointing is near the star, low or in daylig
                 CHECK(v.elongation >= b.elongation_limit_deg * deg);
                 CHECK(v.altitude >= tel.min_altitude_deg * deg);
                 CHECK(v.star_altitude <= -tel.dark_depression_deg * deg);
-            } else if (v.outcome != VisitOutcome::cloudy) {
+            } else if (v.outcome != VisitOutcome::cloudy && v.outcome != VisitOutcome::idle) {
                 ++refused;
             }
         }
@@ -194,4 +195,77 @@ TEST_CASE("the probability covered never falls from one night to the next, cloud
     }
     CHECK(cloudy > 0);
     CHECK(cloudy < 8);
+}
+
+namespace {
+
+// A solution whose predicted place sits on the star as the team's own orbit of its planet sees it at the
+// opposition date (no track: the place stays put), with a 10" circle.
+Solution solution_on_the_star() {
+    const World& w = world();
+    const Brief& b = w.made.ex.exercise.brief;
+    Solution s = solution_at_truth(10.0);
+    const Vec3 star = -kepler_observer_path(b)(days_from_year(b.epoch0_year, w.opposition_year));
+    s.prediction.lon = wrap_two_pi(std::atan2(star.y(), star.x()));
+    s.prediction.lat = std::asin(star.z() / star.norm());
+    s.prediction.track.clear();
+    return s;
+}
+
+bool line_has(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
+
+}  // namespace
+
+TEST_CASE("a region on the star searches nothing, and every night and the whole search say why") {
+    const RehearsalResult r = rehearse(solution_on_the_star(), test_telescope(12.0), 3);
+    const Brief& b = world().made.ex.exercise.brief;
+    CHECK(r.fields_searched == 0);
+    CHECK(r.plan.empty());
+    REQUIRE(r.nights.size() == 3);
+    for (const NightRecord& n : r.nights) {
+        CHECK(n.idle == NightIdle::near_star);
+        CHECK(n.centre_elongation < b.elongation_limit_deg * deg);
+    }
+    int idle_rows = 0;
+    for (const VisitRecord& v : r.log) idle_rows += v.outcome == VisitOutcome::idle && v.idle == NightIdle::near_star ? 1 : 0;
+    CHECK(idle_rows == 3);
+    CHECK(line_has(search_log_csv(r, b.epoch0_year), "no field: the region is within the elongation limit of the star"));
+    const std::string line = search_idle_line(r, b.elongation_limit_deg);
+    CHECK(line_has(line, "Nothing could be searched on any of the 3 nights: 3 nights the region is within the elongation limit"));
+    CHECK(line_has(line, "--start"));
+}
+
+TEST_CASE("a site that never gets dark, one where the region never rises high enough, and all cloud: each said") {
+    const double body_lat_deg = world().truth->at_year(world().opposition_year).lat / deg;
+    {   // The star sinks at most 30 deg below the horizon at latitude 60 (it stays near the equator of a planet
+        // whose axis is normal to its orbit), so a darkness of 40 deg depression never comes.
+        Telescope t = test_telescope(12.0);
+        t.site_latitude_deg = 60.0;
+        t.dark_depression_deg = 40.0;
+        const RehearsalResult r = rehearse(solution_at_truth(10.0), t, 2);
+        for (const NightRecord& n : r.nights) CHECK(n.idle == NightIdle::no_darkness);
+        CHECK(line_has(search_idle_line(r, 30.0), "2 nights no darkness"));
+    }
+    {   // 60 deg from the body's declination the region culminates 30 deg high, below a 40 deg minimum.
+        Telescope t = test_telescope(12.0);
+        t.site_latitude_deg = body_lat_deg - 60.0;
+        t.min_altitude_deg = 40.0;
+        const RehearsalResult r = rehearse(solution_at_truth(10.0), t, 2);
+        CHECK(r.fields_searched == 0);
+        for (const NightRecord& n : r.nights) CHECK(n.idle == NightIdle::too_low);
+        CHECK(line_has(search_idle_line(r, 30.0), "2 nights the region is below the minimum altitude"));
+    }
+    {
+        Telescope t = test_telescope(12.0);
+        t.clear_fraction = 0.0;
+        const RehearsalResult r = rehearse(solution_at_truth(10.0), t, 2);
+        for (const NightRecord& n : r.nights) CHECK(n.idle == NightIdle::cloudy);
+        CHECK(line_has(search_idle_line(r, 30.0), "2 nights cloudy"));
+    }
+    {   // A searched night has no reason and no such line.
+        const RehearsalResult r = rehearse(solution_at_truth(10.0), test_telescope(body_mag() - 3.0), 1);
+        CHECK(r.fields_searched > 0);
+        CHECK(r.nights.front().idle == NightIdle::none);
+        CHECK(search_idle_line(r, 30.0).empty());
+    }
 }

@@ -2,7 +2,8 @@
 // every panel renders at the asked size, is not blank and differs from the others; the sky and the system view
 // hold no pixel of the hidden body's colour before the reveal and do after it; a changed answer key gives exit
 // status 2, the message in the window and on stderr, and nothing revealed; a missing or corrupt exercise shows
-// its message and exits 2. Needs an X display (CTest runs this suite under xvfb-run).
+// its message and exits 2; the search panel shows a card before `wayward search`, then the nights, and the hidden
+// body only after the reveal. Needs an X display (CTest runs this suite under xvfb-run).
 #include <doctest/doctest.h>
 
 #include <cstdlib>
@@ -156,6 +157,29 @@ TEST_CASE("a missing or corrupt exercise: the screenshot shows the message, stde
         REQUIRE(s.loaded);
         CHECK(count_near(s.image, hidden_vermillion, 12, false) > 100);
     }
+}
+
+TEST_CASE("the search panel: a card before `wayward search`, then the nights; the hidden body only after the reveal") {
+    require_display();
+    const std::string dir = make_exercise("search");
+    const auto solved = wayward::testing::run_cli("solve " + dir + " --quiet");
+    REQUIRE_MESSAGE(solved.status == 0, solved.output);
+    const std::string common = dir + " --size 1280x800 --frames 2 --year 1960 --panel search";
+    const Shot before = screenshot(common, "search-none.png");
+    CHECK(before.run.status == 0);
+    REQUIRE(before.loaded);
+    const auto searched = wayward::testing::run_cli("search " + dir);
+    REQUIRE_MESSAGE(searched.status == 0, searched.output);
+    const Shot sealed = screenshot(common, "search-sealed.png");
+    const Shot open = screenshot(common + " --reveal", "search-revealed.png");
+    CHECK(sealed.run.status == 0);
+    CHECK(open.run.status == 0);
+    REQUIRE(sealed.loaded);
+    REQUIRE(open.loaded);
+    CHECK(distinct_colours(sealed.image) > 150);
+    CHECK(differing_fraction(before.image, sealed.image) > 0.05);      // the nights replaced the card
+    CHECK(count_near(sealed.image, hidden_vermillion, 12, false) == 0);  // nowhere in the window before the reveal
+    CHECK(count_near(open.image, hidden_vermillion, 12, true) > 20);     // the body's true place after it
 }
 
 }  // TEST_SUITE

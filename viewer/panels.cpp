@@ -10,6 +10,7 @@ std::vector<std::unique_ptr<Panel>> make_panels() {
     panels.push_back(make_residuals_panel());
     panels.push_back(make_solve_panel());
     panels.push_back(make_score_panel());
+    panels.push_back(make_search_panel());
     return panels;
 }
 

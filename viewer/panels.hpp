@@ -2,7 +2,7 @@
 // A panel adds its own widgets to the sidebar, takes the canvas's mouse events that ImGui does not want, and
 // draws into the canvas: SFML for bulk point sprites (the star field), ImGui's background draw list for
 // anti-aliased lines, discs and text. Panels read the model (sim's numbers) and the controls; they compute no
-// physics. Panels: system, sky (both modes), residuals, solve, score (trainee mode; in author mode they say what
+// physics. Panels: system, sky (both modes), residuals, solve, score, search (trainee mode; in author mode they say what
 // they need).
 #pragma once
 
@@ -52,6 +52,7 @@ std::unique_ptr<Panel> make_sky_panel();
 std::unique_ptr<Panel> make_residuals_panel();
 std::unique_ptr<Panel> make_solve_panel();
 std::unique_ptr<Panel> make_score_panel();
+std::unique_ptr<Panel> make_search_panel();  // viewer/panel_search.cpp: the nights of `wayward search`
 
 // Every panel of this build, in sidebar order.
 std::vector<std::unique_ptr<Panel>> make_panels();

@@ -44,6 +44,15 @@ struct CampaignSettings {
     SolveOptions options;             // as `wayward solve` would build them (threads and seed set per unit)
 };
 
+// The search rehearsal in a campaign ([search] in the spec): off unless the table is there. Each case runs
+// `nights` nights of `strategy` from its epoch with the scenario's telescope; the nights are the campaign's night
+// budget, and discovery within them is the case's search success.
+struct CampaignSearch {
+    bool on = false;
+    int nights = 30;
+    std::string strategy = "probability";
+};
+
 struct CampaignSpec {
     std::string file;                 // the spec's path (for messages)
     std::string text;                 // its content
@@ -56,6 +65,7 @@ struct CampaignSpec {
     std::vector<double> epochs;       // as given (offsets in years, or years)
     std::vector<CampaignScenario> scenarios;
     std::vector<CampaignSettings> settings;
+    CampaignSearch search;
 
     std::size_t systems() const { return scenarios.size() * seeds; }
     std::size_t units() const { return systems() * settings.size(); }
@@ -103,6 +113,10 @@ struct CaseRow {
     double closest_year = NAN, closest_arcmin = NAN;
     double data_centre_year = NAN;            // sigma-weighted mean time of the kept observations
     double fitted_a_au = NAN, true_a_au = NAN, fitted_mass = NAN, true_mass = NAN;
+    bool searched = false;                    // the search rehearsal ran for this case (empty cells otherwise)
+    bool search_found = false;                // the body confirmed within the night budget
+    int search_night = 0;                     // night of discovery (1-based; 0 when not found)
+    double search_hours = NAN;                // telescope hours used until found or the budget ran out
     std::string note;                         // why a case failed (no commas or quotes)
     double unit_seconds = 0.0;                // wall time of the unit's solve and predictions (not deterministic)
 

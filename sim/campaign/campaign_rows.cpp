@@ -47,12 +47,13 @@ const std::string& campaign_csv_header() {
     static const std::string h =
         "case,scenario,seed,settings,epoch_year,epoch_offset_years,status,separation_arcmin,field_radius_arcmin,hit,"
         "mahalanobis,inside_1sigma,inside_2sigma,radius90_arcmin,radius90_holds,luck_fraction,closest_year,closest_arcmin,"
-        "data_centre_year,closest_minus_centre_years,fitted_a_au,true_a_au,fitted_mass,true_mass,note,unit_seconds";
+        "data_centre_year,closest_minus_centre_years,fitted_a_au,true_a_au,fitted_mass,true_mass,search_found,search_night,"
+        "search_hours,note,unit_seconds";
     return h;
 }
 
 namespace {
-constexpr std::size_t kColumns = 26;
+constexpr std::size_t kColumns = 29;
 
 std::string clean_note(std::string s) {
     for (char& c : s)
@@ -90,6 +91,9 @@ std::string format_case_row(const CaseRow& r) {
     add(cell_or_empty("%.6f", r.true_a_au));
     add(cell_or_empty("%.6e", r.fitted_mass));
     add(cell_or_empty("%.6e", r.true_mass));
+    add(r.searched ? (r.search_found ? "1" : "0") : "");
+    add(r.searched && r.search_found ? std::to_string(r.search_night) : "");
+    add(r.searched ? cell_or_empty("%.2f", r.search_hours) : "");
     add(clean_note(r.note));
     s += cell_or_empty("%.3f", r.unit_seconds);
     s += '\n';
@@ -143,8 +147,22 @@ CaseRow parse_case_row(const std::string& line, const std::string& file, long n)
     r.true_a_au = number(21, false);
     r.fitted_mass = number(22, false);
     r.true_mass = number(23, false);
-    r.note = c[24];
-    r.unit_seconds = number(25, false);
+    if (!c[24].empty()) {
+        r.searched = true;
+        r.search_found = flag(24);
+        if (r.search_found) {
+            const std::uint64_t night = whole(25);
+            if (night < 1 || night > 100000) throw InputError(file, n, names[25], "\"" + c[25] + "\" is not a night number");
+            r.search_night = static_cast<int>(night);
+        } else if (!c[25].empty()) {
+            throw InputError(file, n, names[25], "must be empty when the body was not found");
+        }
+        r.search_hours = number(26, true);
+    } else if (!c[25].empty() || !c[26].empty()) {
+        throw InputError(file, n, names[24], "is empty but the search's other cells are not");
+    }
+    r.note = c[27];
+    r.unit_seconds = number(28, false);
     if (!std::isfinite(r.unit_seconds)) r.unit_seconds = 0.0;
     return r;
 }

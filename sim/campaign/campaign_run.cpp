@@ -35,7 +35,9 @@
 #include "sim/base/parallel.hpp"
 #include "sim/base/progress.hpp"
 #include "sim/base/random.hpp"
+#include "sim/night/rehearsal.hpp"
 #include "sim/score/score.hpp"
+#include "sim/score/truth_ephemeris.hpp"
 #include "sim/io/toml_reader.hpp"
 #include "sim/base/units.hpp"
 
@@ -111,6 +113,37 @@ private:
     std::map<std::size_t, std::shared_future<std::shared_ptr<const SystemData>>> made_;
 };
 
+// The search rehearsal of one case: the case's prediction as the team's solution, the scenario's telescope,
+// `nights` nights from the epoch. Its streams come from (system seed, epoch index) alone, so the sky, the chart
+// and the weather of a system and epoch are the same under every settings, thread count and shard. A rehearsal
+// that cannot run is a search miss with the reason in the note.
+void search_case(const CampaignSpec& spec, const Exercise& ex, const TruthEphemeris& truth, double hidden_h, const Prediction& p,
+                 std::uint64_t system_seed, std::size_t epoch, CaseRow& r) {
+    r.searched = true;
+    r.search_found = false;
+    r.search_hours = 0.0;
+    if (!ex.brief.telescope) {
+        r.note = "search: the brief has no telescope";
+        return;
+    }
+    Solution team;
+    team.exercise_sha256 = ex.brief.answer_key_sha256;
+    team.prediction = p;
+    RehearsalOptions opt;
+    opt.nights = spec.search.nights;
+    opt.start_year = p.epoch_year;
+    opt.strategy = strategy_by_name(spec.search.strategy);
+    opt.seed = derive_seed(system_seed, "campaign-search", epoch);
+    try {
+        const RehearsalResult res = run_rehearsal(ex.brief, team, *ex.brief.telescope, truth, hidden_h, opt);
+        r.search_found = res.found;
+        r.search_night = res.found ? res.found_night : 0;
+        r.search_hours = res.hours_used;
+    } catch (const InputError& e) {
+        r.note = "search: " + e.message();
+    }
+}
+
 // Solves one unit and scores it at every epoch. Returns no rows if cancelled.
 std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, std::size_t unit, const std::atomic<bool>* cancel) {
     const std::size_t system = unit / spec.settings.size();
@@ -161,9 +194,10 @@ std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, 
             hooks.cancel = cancel;
             const std::vector<Prediction> preds = predict(*sol.setup, sol.fit, cs.epochs_year, prediction_options(o), hooks);
             const double centre = decimal_year(ex.brief.epoch0_year, sol.fit.layout.t_ref);
+            const TruthEphemeris truth = integrate_truth(ex.brief, data.ex->key);  // once for every epoch
             for (std::size_t e = 0; e < rows.size(); ++e) {
                 if (cancelled()) return {};
-                const Score s = score_prediction(ex.brief, data.ex->key, preds[e], spec.window_years);
+                const Score s = score_prediction(ex.brief, truth, preds[e], spec.window_years);
                 CaseRow& r = rows[e];
                 r.separation_arcmin = s.separation_arcmin;
                 r.hit = s.hit;
@@ -175,6 +209,7 @@ std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, 
                 r.data_centre_year = centre;
                 r.fitted_a_au = sol.best.semi_major_axis;
                 r.fitted_mass = sol.best.mass;
+                if (spec.search.on) search_case(spec, ex, truth, hidden_absolute_magnitude(data.ex->key), preds[e], data.seed, e, r);
             }
         } catch (const std::bad_alloc&) {
             if (cancelled()) return {};

@@ -35,6 +35,7 @@
 #include "sim/base/progress.hpp"
 #include "sim/base/random.hpp"
 #include "sim/score/score.hpp"
+#include "sim/search/strategy.hpp"
 #include "sim/io/toml_reader.hpp"
 #include "sim/base/units.hpp"
 
@@ -204,6 +205,34 @@ void read_settings(TableReader& root, const std::string& file, CampaignSpec& spe
     }
 }
 
+// [search]: the rehearsal per case, when present. Every scenario needs a telescope, and each epoch's nights must
+// end inside its span.
+void read_search(TableReader& root, const std::string& file, CampaignSpec& spec) {
+    const toml::table* st = root.table("search");
+    if (!st) return;
+    TableReader r(*st, file, "search");
+    spec.search.on = true;
+    const long long nights = r.integer("nights").value_or(30);
+    if (nights < 1 || nights > 366) r.fail("nights", "must be in [1, 366] (the night budget of each case)");
+    spec.search.nights = static_cast<int>(nights);
+    spec.search.strategy = r.string("strategy").value_or("probability");
+    if (spec.search.strategy == "plan") r.fail("strategy", "a campaign searches by probability, sweep or spiral (a plan file belongs to one exercise)");
+    try {
+        strategy_by_name(spec.search.strategy);
+    } catch (const InputError& e) {
+        r.fail("strategy", e.message());
+    }
+    for (const CampaignScenario& cs : spec.scenarios) {
+        if (!cs.scenario.telescope) r.fail("nights", cs.name + " has no [telescope] table, so it cannot be searched");
+        const double end = cs.scenario.epoch0_year + cs.scenario.span_years;
+        for (double y : cs.epochs_year)
+            if (y + (spec.search.nights + 2.0) / julian_year_days > end)
+                r.fail("nights", std::to_string(spec.search.nights) + " nights from the epoch " + cell_or_empty("%g", y) + " run past " + cs.name +
+                                     "'s span (it ends at " + cell_or_empty("%g", end) + ")");
+    }
+    r.finish();
+}
+
 }  // namespace
 
 CampaignSpec parse_campaign_spec(const std::string& text, const std::string& file, const std::string& base_dir) {
@@ -216,6 +245,7 @@ CampaignSpec parse_campaign_spec(const std::string& text, const std::string& fil
     const std::string identity = read_scenarios(root, file, base_dir, spec);
     read_epochs(root, file, spec);
     read_settings(root, file, spec);
+    read_search(root, file, spec);
     root.finish();
     // Every case is one row; a count no machine could finish is refused before anything is written.
     constexpr double max_cases = 10'000'000;

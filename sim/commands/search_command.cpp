@@ -1,6 +1,7 @@
 // `wayward search`: the rehearsal from the command line. See search_command.hpp.
 #include "sim/commands/search_command.hpp"
 
+#include <algorithm>
 #include <cstdio>
 #include <filesystem>
 #include <sstream>
@@ -33,20 +34,71 @@ std::string search_plan_csv(const RehearsalResult& r) {
 }
 
 std::string search_log_csv(const RehearsalResult& r, double epoch0_year) {
-    std::string s = "night,year,field,visit,lon_deg,lat_deg,altitude_deg,airmass,elongation_deg,limit_mag,detections,candidates,confirmed,rejected,open,outcome\n";
+    std::string s = "night,year,field,visit,lon_deg,lat_deg,altitude_deg,airmass,elongation_deg,limit_mag,detections,candidates,confirmed,rejected,open,outcome,exposure\n";
     for (const VisitRecord& v : r.log) {
         s += std::to_string(v.night) + "," + fmt("%.6f,", decimal_year(epoch0_year, v.t_days)) + std::to_string(v.field) + "," +
              std::to_string(v.visit) + ",";
         if (v.outcome == VisitOutcome::cloudy) {
-            s += ",,,,,,,,,,,cloudy\n";
+            s += ",,,,,,,,,,,cloudy,\n";
+            continue;
+        }
+        if (v.outcome == VisitOutcome::idle) {  // a clear night that searched nothing, and why
+            s += ",,,," + fmt("%.3f", v.elongation / deg) + ",,,,,,,no field: " + to_string(v.idle) + ",\n";
             continue;
         }
         s += fmt("%.5f,", v.lon / deg) + fmt("%.5f,", v.lat / deg) + fmt("%.3f,", v.altitude / deg) + fmt("%.4f,", v.airmass) +
              fmt("%.3f,", v.elongation / deg) + fmt("%.3f,", v.limit_mag) + std::to_string(v.detections) + "," +
              std::to_string(v.candidates) + "," + std::to_string(v.confirmed) + "," + std::to_string(v.rejected) + "," +
-             std::to_string(v.open) + "," + to_string(v.outcome) + "\n";
+             std::to_string(v.open) + "," + to_string(v.outcome) + "," + (v.exposure ? std::to_string(v.exposure) : std::string()) + "\n";
     }
     return s;
+}
+
+std::string search_nights_csv(const RehearsalResult& r) {
+    std::string s = "night,year,clear,dark_hours,fields,revisits,hours_used,probability_covered,no_field_because\n";
+    for (const NightRecord& n : r.nights)
+        s += std::to_string(n.night) + "," + fmt("%.6f,", n.start_year) + (n.clear ? "1," : "0,") + fmt("%.2f,", n.dark_hours) +
+             std::to_string(n.fields) + "," + std::to_string(n.revisits) + "," + fmt("%.2f,", n.hours_used) +
+             fmt("%.5f,", n.probability_covered) + to_string(n.idle) + "\n";
+    return s;
+}
+
+std::string search_candidates_csv(const RehearsalResult& r) {
+    std::string s = "night,field,visit,exposure,lon_deg,lat_deg\n";
+    for (const VisitRecord& v : r.log)
+        for (const Star& c : v.candidate_places)
+            s += std::to_string(v.night) + "," + std::to_string(v.field) + "," + std::to_string(v.visit) + "," + std::to_string(v.exposure) +
+                 "," + fmt("%.7f,", c.lon / deg) + fmt("%.7f\n", c.lat / deg);
+    return s;
+}
+
+std::string search_idle_line(const RehearsalResult& r, double elongation_limit_deg) {
+    if (r.found || r.fields_searched > 0 || r.nights.empty()) return "";
+    // Count the nights by reason, in the order of NightIdle.
+    const NightIdle order[] = {NightIdle::near_star, NightIdle::no_darkness, NightIdle::too_low, NightIdle::too_short,
+                               NightIdle::unplanned, NightIdle::cloudy};
+    std::string s = "Nothing could be searched on any of the " + std::to_string(r.nights.size()) + " night" +
+                    (r.nights.size() == 1 ? "" : "s") + ":";
+    bool first = true;
+    for (NightIdle why : order) {
+        int n = 0;
+        double lo = 1e9, hi = -1e9;
+        for (const NightRecord& night : r.nights)
+            if (night.idle == why) {
+                ++n;
+                lo = std::min(lo, night.centre_elongation);
+                hi = std::max(hi, night.centre_elongation);
+            }
+        if (n == 0) continue;
+        s += std::string(first ? " " : "; ") + std::to_string(n) + (n == 1 ? " night " : " nights ") + to_string(why);
+        if (why == NightIdle::near_star || why == NightIdle::too_low)
+            s += " (its centre " + fmt("%.1f", lo / deg) + (hi - lo >= 0.05 * deg ? "-" + fmt("%.1f", hi / deg) : std::string()) +
+                 " deg from the star" + (why == NightIdle::near_star ? ", limit " + fmt("%.0f", elongation_limit_deg) + " deg" : std::string()) + ")";
+        first = false;
+    }
+    if (std::any_of(r.nights.begin(), r.nights.end(), [](const NightRecord& n) { return n.idle == NightIdle::near_star || n.idle == NightIdle::too_low; }))
+        s += ". Try a search epoch when the region is farther from the star and higher in the dark sky (--start YEAR)";
+    return s + ".\n";
 }
 
 namespace {
@@ -65,6 +117,14 @@ std::string summary_text(const RehearsalResult& r, const Brief& b, const Telesco
     for (const NightRecord& n : r.nights) {
         o << "Night " << n.night << " (" << fmt("%.3f", n.start_year) << "): ";
         if (!n.clear) { o << "cloudy\n"; continue; }
+        if (n.idle != NightIdle::none) {
+            o << fmt("%.1f", n.dark_hours) << " h dark, no field: " << to_string(n.idle);
+            if (n.idle == NightIdle::near_star)
+                o << " (its centre " << fmt("%.1f", n.centre_elongation / deg) << " deg from the star, limit "
+                  << fmt("%.0f", b.elongation_limit_deg) << " deg)";
+            o << "\n";
+            continue;
+        }
         o << fmt("%.1f", n.dark_hours) << " h dark, " << n.fields << " field" << (n.fields == 1 ? "" : "s") << ", " << n.revisits
           << " revisit" << (n.revisits == 1 ? "" : "s") << ", " << fmt("%.1f", n.hours_used) << " h used, probability covered "
           << fmt("%.1f", 100.0 * n.probability_covered) << " %\n";
@@ -75,6 +135,7 @@ std::string summary_text(const RehearsalResult& r, const Brief& b, const Telesco
     else
         o << "Not found in " << r.nights.size() << " night" << (r.nights.size() == 1 ? "" : "s") << " (" << fmt("%.1f", r.hours_used)
           << " h of telescope time).\n";
+    o << search_idle_line(r, b.elongation_limit_deg);
     if (r.fields_kept_from_star > 0)
         o << "Kept away from the star: " << r.fields_kept_from_star << " field-night" << (r.fields_kept_from_star == 1 ? "" : "s")
           << " nearer than the elongation limit (" << fmt("%.0f", b.elongation_limit_deg) << " deg) never scheduled.\n";
@@ -137,10 +198,23 @@ int run_search(const SearchArgs& args, std::ostream& out) {
     remove_stale_temporaries(dir);
     write_file_atomic(dir + "/plan.csv", search_plan_csv(r));
     write_file_atomic(dir + "/log.csv", search_log_csv(r, ex.brief.epoch0_year));
+    write_file_atomic(dir + "/nights.csv", search_nights_csv(r));
+    write_file_atomic(dir + "/candidates.csv", search_candidates_csv(r));
+    {   // What the viewer needs to rebuild a field's chart and exposure: the seed and the telescope used.
+        toml::table setup;
+        setup.insert("search", toml::table{{"seed", std::to_string(args.seed)},  // a string: every 64-bit seed exactly
+                                           {"strategy", strategy_name},
+                                           {"nights", args.nights},
+                                           {"start_year", opt.start_year}});
+        setup.insert("telescope", detail::telescope_table(tel));
+        std::ostringstream text;
+        text << "# The search rehearsal's setup, written by wayward search (read by the viewer's search panel).\n" << setup << "\n";
+        write_file_atomic(dir + "/rehearsal.toml", text.str());
+    }
     save_search_png(r, tel, ex.brief.epoch0_year, dir + "/search.png");
     write_file_atomic(dir + "/summary.txt", summary);  // last: its presence marks a complete search folder
     out << summary;
-    out << "Wrote " << dir << "/plan.csv, log.csv, search.png, summary.txt\n";
+    out << "Wrote " << dir << "/plan.csv, log.csv, nights.csv, candidates.csv, rehearsal.toml, search.png, summary.txt\n";
     return 0;
 }
 

@@ -1,6 +1,7 @@
 // `wayward search DIR`: the telescope search rehearsed between solve and score. Reads the brief, the team's
 // solution and its telescope (the brief's, or --telescope FILE), plans and runs the nights against the sealed
-// truth, and writes DIR/search/plan.csv, log.csv, summary.txt and search.png. Every input is read and checked
+// truth, and writes DIR/search/plan.csv, log.csv, nights.csv, candidates.csv, rehearsal.toml (seed and telescope),
+// summary.txt and search.png. Every input is read and checked
 // before anything is written.
 #pragma once
 
@@ -27,6 +28,12 @@ struct RehearsalResult;
 // The files' texts (public for the tests' byte-for-byte comparisons).
 std::string search_plan_csv(const RehearsalResult& r);
 std::string search_log_csv(const RehearsalResult& r, double epoch0_year);
+std::string search_nights_csv(const RehearsalResult& r);       // per night: weather, fields, probability covered, why none
+std::string search_candidates_csv(const RehearsalResult& r);   // where each visit's candidates were measured
+
+// When the whole search could search no field: one line saying so and counting the nights by reason (the
+// region within the elongation limit, no darkness, too low, cloudy); "" when any field was searched.
+std::string search_idle_line(const RehearsalResult& r, double elongation_limit_deg);
 
 // The caution printed with every plan of pointings.
 extern const char* const search_caution;

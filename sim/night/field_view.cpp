@@ -63,7 +63,8 @@ const SkyModel::CellData& SkyModel::cell(const SkyCell& c) {
     return cells_.emplace(c.index, std::move(d)).first->second;
 }
 
-Exposure SkyModel::expose(double lon, double lat, double t_days, double limit_mag, std::uint64_t visit_key, const BodyInField& body) {
+Exposure SkyModel::expose(double lon, double lat, double t_days, double limit_mag, std::uint64_t visit_key, const BodyInField& body,
+                          FieldPicture* picture) {
     Exposure out;
     const double sigma = tel_.astrometric_error_arcsec * arcsec;
     const double match = chart_.match_radius_arcsec * arcsec;
@@ -82,21 +83,29 @@ Exposure SkyModel::expose(double lon, double lat, double t_days, double limit_ma
             if (!inside_field(tel_, xi, eta)) continue;
             const double mag = s.star.mag + s.amplitude * std::sin(two_pi * t_days / s.period_days + s.phase);
             const std::uint64_t key = star_key(vbase, c.index, k);
+            if (picture && s.listed) picture->chart.push_back({s.star.lon + s.chart_dlon, s.star.lat + s.chart_dlat, s.star.mag});
             if (body.present && s.listed &&
                 std::hypot(wrap_pi(s.star.lon + s.chart_dlon - body.lon) * std::cos(body.lat), s.star.lat + s.chart_dlat - body.lat) < match)
                 body_hidden = true;
             if (!(hash_uniform(key) < detection_efficiency(mag, limit_mag, tel_.detection_width_mag, tel_.detection_max))) continue;
             ++out.detections;
             const bool in_chart = s.listed && std::hypot(s.chart_dlon, s.chart_dlat) < match;
-            if (in_chart) continue;
             Detection det;
             det.lon = s.star.lon + sigma * hash_normal(key + 11) / std::cos(s.star.lat);
             det.lat = s.star.lat + sigma * hash_normal(key + 12);
+            if (picture) picture->recorded.push_back({det.lon, det.lat, mag});
+            if (in_chart) continue;
             det.source = s.amplitude > 0.0 ? Source::variable_star : Source::star;
             out.candidates.push_back(det);
         }
-        for (const Star& e : d.spurious_entries)
+        for (const Star& e : d.spurious_entries) {
+            if (picture) {
+                double xi = 0.0, eta = 0.0;
+                to_tangent(lon, lat, e.lon, e.lat, xi, eta);
+                if (inside_field(tel_, xi, eta)) picture->chart.push_back(e);
+            }
             if (body.present && std::hypot(wrap_pi(e.lon - body.lon) * std::cos(body.lat), e.lat - body.lat) < match) body_hidden = true;
+        }
     }
     // Spurious detections: a fresh Poisson draw each exposure.
     Rng rng = make_rng(vbase, "spurious");
@@ -108,6 +117,7 @@ Exposure SkyModel::expose(double lon, double lat, double t_days, double limit_ma
         from_tangent(lon, lat, xi, eta, det.lon, det.lat);
         det.source = Source::spurious;
         ++out.detections;
+        if (picture) picture->recorded.push_back({det.lon, det.lat, limit_mag});
         out.candidates.push_back(det);
     }
     if (body.present) {
@@ -121,6 +131,7 @@ Exposure SkyModel::expose(double lon, double lat, double t_days, double limit_ma
                 Detection det;
                 det.lon = body.lon + sigma * hash_normal(key + 1) / std::cos(body.lat);
                 det.lat = body.lat + sigma * hash_normal(key + 2);
+                if (picture) picture->recorded.push_back({det.lon, det.lat, body.mag});
                 det.source = Source::body;
                 out.candidates.push_back(det);
             }

@@ -48,14 +48,22 @@ struct BodyInField {
     double mag = 99.0;            // apparent magnitude
 };
 
+// What a person would look at for one exposure: the chart's entries inside the field (where the chart puts them)
+// and everything the exposure recorded (measured places), with magnitudes. For the viewer's field pictures.
+struct FieldPicture {
+    std::vector<Star> chart;
+    std::vector<Star> recorded;
+};
+
 // The sky and chart for one rehearsal: caches each sky cell's stars and chart flags.
 class SkyModel {
 public:
     SkyModel(const SkySpec& sky, const Telescope& tel, const ChartModel& chart, std::uint64_t seed);
     // One exposure centred on (lon, lat) at day t with the given limiting magnitude; visit_key makes the
     // detection draws of this exposure its own.
-    Exposure expose(double lon, double lat, double t_days, double limit_mag, std::uint64_t visit_key,
-                                  const BodyInField& body);
+    // `picture`, when given, receives the chart and the recorded objects in the field as well.
+    Exposure expose(double lon, double lat, double t_days, double limit_mag, std::uint64_t visit_key, const BodyInField& body,
+                    FieldPicture* picture = nullptr);
     long chart_entries_seen() const { return chart_entries_; }
     std::size_t cells_cached() const { return cells_.size(); }
 

@@ -21,6 +21,20 @@ std::string to_string(VisitOutcome o) {
         case VisitOutcome::refused_near_star: return "refused: too near the star";
         case VisitOutcome::refused_daylight: return "refused: not dark";
         case VisitOutcome::refused_low: return "refused: too low";
+        case VisitOutcome::idle: return "no field";
+    }
+    return "?";
+}
+
+std::string to_string(NightIdle why) {
+    switch (why) {
+        case NightIdle::none: return "";
+        case NightIdle::cloudy: return "cloudy";
+        case NightIdle::no_darkness: return "no darkness: the star never sinks far enough below the horizon";
+        case NightIdle::near_star: return "the region is within the elongation limit of the star";
+        case NightIdle::too_low: return "the region is below the minimum altitude all through the darkness";
+        case NightIdle::too_short: return "the region is observable too briefly for one field";
+        case NightIdle::unplanned: return "the team's plan names no field for this night";
     }
     return "?";
 }
@@ -98,6 +112,8 @@ VisitRecord observe(NightContext& c, const Field& f, int night, double t, int vi
     if (chk.outcome == Pointing::too_low) { v.outcome = VisitOutcome::refused_low; return v; }
     v.limit_mag = limit_at_airmass(c.tel.limiting_mag, c.tel.extinction_mag_per_airmass, chk.airmass);
     exposure = c.sky.expose(v.lon, v.lat, t_mid, v.limit_mag, ++c.visit_counter, c.truth.body(t_mid));
+    v.exposure = c.visit_counter;
+    for (const Detection& d : exposure.candidates) v.candidate_places.push_back({d.lon, d.lat, v.limit_mag});
     v.detections = exposure.detections;
     v.candidates = static_cast<int>(exposure.candidates.size());
     v.outcome = visit == 1 ? VisitOutcome::observed : VisitOutcome::revisit;
@@ -159,6 +175,13 @@ bool settle(NightContext& c, Pending& p, const Exposure& again, double t, VisitR
 }
 
 }  // namespace
+
+SkyModel rehearsal_sky_model(const Telescope& tel, const RehearsalOptions& opt) {
+    SkySpec sky = opt.sky;
+    sky.seed = derive_seed(opt.seed, "sky");
+    sky.faint_mag = tel.limiting_mag + 5.0 * tel.detection_width_mag;  // fainter stars are recorded < 1 % of the time
+    return SkyModel(sky, tel, opt.chart, opt.seed);
+}
 
 double hidden_absolute_magnitude(const AnswerKey& key) {
     const auto hidden = key.hidden_index();
@@ -283,6 +306,23 @@ void work_night(NightContext& c, const Night& night, const NightPlan& plan, std:
     }
 }
 
+// Why a clear night searched no field, tried in the order a team would check: darkness, the star, the altitude
+// (any field observable for a moment in tonight's darkness), else the windows were too short for a field.
+NightIdle idle_reason(const NightContext& c, const Night& night, const NightPlan& plan) {
+    if (night.dark_hours() <= 0.0) return NightIdle::no_darkness;
+    const bool all_near = std::all_of(plan.near_star.begin(), plan.near_star.end(), [](bool b) { return b; });
+    if (plan.fields.empty()) return NightIdle::unplanned;
+    if (all_near) return NightIdle::near_star;
+    const double mid_year = decimal_year(c.epoch0_year, 0.5 * (night.dark_start_days + night.dark_end_days));
+    for (std::size_t i = 0; i < plan.fields.size(); ++i) {
+        if (plan.near_star[i]) continue;
+        double lon = 0.0, lat = 0.0;
+        field_centre(c.out.region, plan.fields[i], mid_year, lon, lat);
+        if (observable_hours(c.site, c.team_path, night, unit_vector(lon, lat)) > 0.0) return NightIdle::too_short;
+    }
+    return NightIdle::too_low;
+}
+
 double covered_fraction(const NightContext& c) {
     double seen = 0.0;
     for (bool s : c.seen) seen += s ? 1.0 : 0.0;
@@ -308,10 +348,7 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
                                                            std::to_string(brief.epoch0_year + brief.span_years) + ")");
 
     out.region = region_from_solution(solution, opt.region_samples, derive_seed(opt.seed, "region"));
-    SkySpec sky = opt.sky;
-    sky.seed = derive_seed(opt.seed, "sky");
-    sky.faint_mag = tel.limiting_mag + 5.0 * tel.detection_width_mag;  // fainter stars are recorded < 1 % of the time
-    SkyModel sky_model(sky, tel, opt.chart, opt.seed);
+    SkyModel sky_model = rehearsal_sky_model(tel, opt);
     // The predicted apparent motion from the team's track near the first night, for the revisit gap.
     double l0 = 0.0, b0 = 0.0, l1 = 0.0, b1 = 0.0;
     region_centre(out.region, opt.start_year, l0, b0);
@@ -344,15 +381,36 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
         rec.clear = clear;
         rec.dark_hours = night.dark_hours();
         const NightPlan plan = plan_night(c, night, covered);
+        {
+            const double mid_days = 0.5 * (night.dark_start_days + night.dark_end_days);
+            double cl = 0.0, cb = 0.0;
+            region_centre(out.region, decimal_year(brief.epoch0_year, mid_days), cl, cb);
+            rec.centre_elongation = check_pointing(site, team_path, unit_vector(cl, cb), mid_days).elongation;
+        }
         if (clear) {
             work_night(c, night, plan, covered, pending, rec);
+            if (rec.fields == 0 && !out.found) {
+                rec.idle = idle_reason(c, night, plan);
+                VisitRecord v;
+                v.night = night.index;
+                v.t_days = night.dark_start_days;
+                v.visit = 0;
+                v.elongation = rec.centre_elongation;
+                v.outcome = VisitOutcome::idle;
+                v.idle = rec.idle;
+                out.log.push_back(v);
+            }
         } else {
+            rec.idle = NightIdle::cloudy;
             VisitRecord v;
             v.night = night.index;
             v.t_days = night.dark_start_days;
+            v.visit = 0;
             v.outcome = VisitOutcome::cloudy;
+            v.idle = NightIdle::cloudy;
             out.log.push_back(v);
         }
+        out.fields_searched += rec.fields;
         for (Pending& p : pending) p.next_night = false;  // due as soon as the next clear night allows
         rec.probability_covered = covered_fraction(c);  // a cloudy night keeps what was covered so far
         out.hours_used += rec.hours_used;

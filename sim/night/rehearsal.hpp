@@ -37,14 +37,19 @@ struct RehearsalOptions {
     SkySpec sky;                    // seed and faint limit are set from the telescope
 };
 
-enum class VisitOutcome { observed, revisit, cloudy, refused_near_star, refused_daylight, refused_low };
+// Why a clear night searched no field (none: it searched at least one; cloudy nights say cloudy).
+enum class NightIdle { none, cloudy, no_darkness, near_star, too_low, too_short, unplanned };
+// In words, for the summary and the log ("the region is within the elongation limit of the star", ...).
+std::string to_string(NightIdle why);
+
+enum class VisitOutcome { observed, revisit, cloudy, refused_near_star, refused_daylight, refused_low, idle };
 std::string to_string(VisitOutcome o);
 
 struct VisitRecord {
     int night = 0;
     double t_days = 0.0;
     int field = 0;
-    int visit = 1;              // 1: first look tonight, 2: a revisit
+    int visit = 1;              // 1: first look tonight, 2: a revisit (0 on a cloudy or idle night's row)
     double lon = 0.0, lat = 0.0;
     double altitude = 0.0, airmass = 0.0, limit_mag = 0.0;
     double elongation = 0.0, star_altitude = 0.0;  // from the true geometry (radians)
@@ -52,6 +57,9 @@ struct VisitRecord {
     int candidates = 0;          // unmatched detections
     int confirmed = 0, rejected = 0, open = 0;  // candidates settled by this revisit
     VisitOutcome outcome = VisitOutcome::observed;
+    std::uint64_t exposure = 0;         // the exposure's key in the sky model (0: no exposure taken)
+    std::vector<Star> candidate_places; // where the candidates were measured (mag: the night's limit); no truth
+    NightIdle idle = NightIdle::none;  // why, when the outcome is idle
 };
 
 struct PlanEntry {
@@ -67,6 +75,8 @@ struct NightRecord {
     double dark_hours = 0.0, hours_used = 0.0;
     int fields = 0, revisits = 0;
     double probability_covered = 0.0;  // of the prior, in fields searched on clear nights so far
+    NightIdle idle = NightIdle::none;
+    double centre_elongation = 0.0;    // the region's predicted centre from the star in mid-darkness (team geometry)
 };
 
 struct RehearsalResult {
@@ -81,6 +91,7 @@ struct RehearsalResult {
     int open_candidates = 0;            // never settled
     int fields_planned = 0;
     int fields_kept_from_star = 0;     // field-nights left out of the plan for being too near the star
+    int fields_searched = 0;           // first visits on clear nights, over the whole search
     long chart_entries = 0;
     std::vector<Field> fields;
     SearchRegion region;               // with its weights at the end
@@ -92,6 +103,10 @@ struct RehearsalResult {
     double body_lon_first_night = 0.0, body_lat_first_night = 0.0;
     double body_rate_arcsec_per_hour = 0.0;
 };
+
+// The sky and chart a rehearsal with these options and telescope observes (the viewer rebuilds a field's chart
+// and exposure with it and a log row's exposure key).
+SkyModel rehearsal_sky_model(const Telescope& tel, const RehearsalOptions& options);
 
 // Runs the rehearsal. InputError if the brief has no telescope and none is given, if the answer key lacks the
 // hidden body's surface, or if the nights run past the exercise's span.

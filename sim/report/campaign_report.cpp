@@ -125,6 +125,62 @@ private:
     std::vector<std::pair<std::string, std::size_t>> cols_;
 };
 
+// Nights needed for a share q of the cases to have found the body: the smallest n with at least q of them found by
+// night n; NaN when the budget runs out first (cases not found count as never).
+double nights_for_share(const std::vector<const CaseRow*>& rows, double q) {
+    std::vector<int> nights;
+    for (const CaseRow* r : rows)
+        if (r->searched && r->search_found) nights.push_back(r->search_night);
+    std::size_t n = 0;
+    for (const CaseRow* r : rows) n += r->searched || !r->ok ? 1 : 0;  // failed solves count as not found
+    std::sort(nights.begin(), nights.end());
+    const auto needed = static_cast<std::size_t>(std::ceil(q * static_cast<double>(n) - 1e-9));
+    if (n == 0 || needed == 0 || needed > nights.size()) return NAN;
+    return nights[needed - 1];
+}
+
+// The search rehearsal's table: per settings and epoch, the share of cases whose search found the body within the
+// campaign's night budget, with its Wilson interval, and the nights needed for 50 % and 90 % of them.
+void search_table(std::ostringstream& t, const CampaignManifest& m, const Groups& g) {
+    t << "\nSearch rehearsal: the body confirmed by the telescope within the campaign's night budget (discovery),\n"
+         "with a 95% Wilson interval; night of discovery and telescope hours (medians over the cases that found it);\n"
+         "nights for 50% / 90%: the nights after which that share of all cases had found it (\"-\": not within the budget).\n"
+         "Failed solves count as not found.\n\n";
+    std::size_t first = 10;
+    for (const std::string& n : g.settings) first = std::max(first, n.size() + 2);
+    const std::vector<std::pair<std::string, std::size_t>> cols = {
+        {"settings", first}, {m.epochs_are_offsets ? "epoch (±yr)" : "epoch", 12}, {"cases", 7}, {"found", 7}, {"discovery", 11},
+        {"interval", 15}, {"night", 7}, {"hours", 8}, {"50%", 6}, {"90%", 6}};
+    for (std::size_t k = 0; k < cols.size(); ++k) t << pad(cols[k].first, cols[k].second, k == 0);
+    t << "\n";
+    for (const auto& [key, group] : g.by_epoch) {
+        const double x = g.x_value.at(key.second);
+        std::size_t n = 0, found = 0;
+        std::vector<double> night, hours;
+        for (const CaseRow* r : group) {
+            if (!r->searched && r->ok) continue;
+            ++n;
+            if (r->searched && r->search_found) {
+                ++found;
+                night.push_back(r->search_night);
+                hours.push_back(r->search_hours);
+            }
+        }
+        const WilsonInterval wi = wilson_interval(static_cast<double>(found), static_cast<double>(n));
+        auto nights_cell = [&](double q) {
+            const double v = nights_for_share(group, q);
+            return std::isfinite(v) ? table_number("%.0f", v) : std::string("-");
+        };
+        const std::vector<std::string> cells = {
+            g.settings[key.first], m.epochs_are_offsets ? table_number("%+g", x) : table_number("%g", x), std::to_string(n),
+            std::to_string(found), n ? table_number("%.2f", static_cast<double>(found) / static_cast<double>(n)) : "-",
+            "[" + table_number("%.2f", wi.lo) + ", " + table_number("%.2f", wi.hi) + "]", table_number("%.0f", quantile(night, 0.5)),
+            table_number("%.1f", quantile(hours, 0.5)), nights_cell(0.5), nights_cell(0.9)};
+        for (std::size_t k = 0; k < cells.size(); ++k) t << pad(cells[k], cols[k].second, k == 0);
+        t << "\n";
+    }
+}
+
 std::string summary_text(const std::vector<CaseRow>& rows, const CampaignManifest& m, const Groups& g, Curves& curves) {
     std::ostringstream t;
     t << "Campaign " << m.name << " (id " << m.id.substr(0, 12) << "), shard " << m.shard.text();
@@ -149,6 +205,7 @@ std::string summary_text(const std::vector<CaseRow>& rows, const CampaignManifes
         curves.lo[key.first].push_back(ri.lo);
         curves.hi[key.first].push_back(ri.hi);
     }
+    if (std::any_of(rows.begin(), rows.end(), [](const CaseRow& r) { return r.searched; })) search_table(t, m, g);
     if (g.scenarios.size() > 1) {
         t << "\nBy scenario (all epochs together):\n";
         table.header("scenario");
