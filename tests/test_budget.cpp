@@ -160,3 +160,51 @@ TEST_CASE("budget: observation draws with and without noise hold the same record
     }
     CHECK(differ > quiet.records.size() / 2);
 }
+
+TEST_CASE("budget with the search: nights of discovery per all-on run, the same on 1 and 2 threads, and bad values") {
+    const Scenario sc = load_scenario(testing::source_path("scenarios/quick.toml"));
+    BudgetOptions o;
+    o.runs = 4;
+    o.seed = 1;
+    o.only = {"all-on"};
+    o.search_nights = 12;
+    o.threads = 1;
+    const BudgetResult one = run_budget(sc, o);
+    o.threads = 2;
+    const BudgetResult two = run_budget(sc, o);
+    REQUIRE(one.search_found_night.size() == 4);
+    CHECK(one.search_found_night == two.search_found_night);  // each run's streams come from its own seed
+    int found = 0;
+    for (int n : one.search_found_night) {
+        CHECK(n >= 0);
+        CHECK(n <= 12);
+        found += n > 0 ? 1 : 0;
+    }
+    CHECK(one.search_found == found);
+    // The nights for 50 % need at least 2 of the 4 runs found; then it is the 2nd smallest night of discovery.
+    std::vector<int> nights;
+    for (int n : one.search_found_night)
+        if (n > 0) nights.push_back(n);
+    std::sort(nights.begin(), nights.end());
+    if (nights.size() >= 2) CHECK(one.search_nights50 == nights[1]);
+    else CHECK(std::isnan(one.search_nights50));
+    if (nights.size() == 4) CHECK(one.search_nights90 == nights[3]);
+    else CHECK(std::isnan(one.search_nights90));
+    const std::string table = budget_table(one);
+    CHECK(table.find("Telescope search of the all-on solutions (12 nights") != std::string::npos);
+    CHECK(budget_runs_csv(one).find("key,run,seed,separation_arcmin,search_night\n") == 0);
+
+    BudgetOptions bad = o;
+    bad.search_nights = -1;
+    CHECK_THROWS_AS(run_budget(sc, bad), InputError);
+    bad.search_nights = 100000;
+    CHECK_THROWS_AS(run_budget(sc, bad), InputError);
+    Scenario no_scope = sc;
+    no_scope.telescope.reset();
+    try {
+        run_budget(no_scope, o);
+        FAIL("a scenario without a telescope was searched");
+    } catch (const InputError& e) {
+        CHECK(e.field() == "telescope");
+    }
+}

@@ -21,7 +21,9 @@
 #include "sim/base/progress.hpp"
 #include "sim/base/random.hpp"
 #include "sim/base/statistics.hpp"
+#include "sim/night/rehearsal.hpp"
 #include "sim/score/score.hpp"
+#include "sim/score/truth_ephemeris.hpp"
 #include "sim/solve/solve.hpp"
 #include "sim/base/units.hpp"
 
@@ -313,9 +315,29 @@ struct MatchedPriors {
     double ecc = 0.3, tilt_rad = 10.0 * deg;
 };
 
-// One line of one run: the system re-observed with that line's error sources, solved, scored (NaN: failed).
-double solve_line(const Scenario& sc, const RunData& data, const LineSpec& ls, const SolveOptions& base, const MatchedPriors& matched) {
-    if (!data.truth) return NAN;
+struct LineResult {
+    double separation_arcmin = NAN;  // NaN: failed
+    int found_night = 0;             // the search rehearsal's night of discovery (0: not found or not searched)
+};
+
+// The all-on solution's search: `nights` nights from its epoch with the scenario's telescope, the weather, sky
+// and detections from the run's seed. Returns the night of discovery, 0 when not found.
+int search_run(const ExerciseInMemory& m, const Solution& sol, int nights, std::uint64_t run_seed) {
+    RehearsalOptions opt;
+    opt.nights = nights;
+    opt.start_year = sol.prediction.epoch_year;
+    opt.seed = derive_seed(run_seed, "budget-search");
+    const TruthEphemeris truth = integrate_truth(m.exercise.brief, m.key);
+    const RehearsalResult r = run_rehearsal(m.exercise.brief, sol, *m.exercise.brief.telescope, truth, hidden_absolute_magnitude(m.key), opt);
+    return r.found ? r.found_night : 0;
+}
+
+// One line of one run: the system re-observed with that line's error sources, solved, scored (NaN: failed), and
+// for the all-on line the search rehearsed when asked.
+LineResult solve_line(const Scenario& sc, const RunData& data, const LineSpec& ls, const SolveOptions& base, const MatchedPriors& matched,
+                      int search_nights) {
+    LineResult out;
+    if (!data.truth) return out;
     try {
         Scenario s = sc;
         s.plan.brief_mass_error = ls.masses ? sc.plan.brief_mass_error : 0.0;
@@ -334,10 +356,13 @@ double solve_line(const Scenario& sc, const RunData& data, const LineSpec& ls, c
             opt.inclination_prior_rad = matched.tilt_rad;
         }
         const Solution sol = solve(m.exercise, opt);
-        return score_prediction(m.exercise.brief, m.key, sol.prediction).separation_arcmin;
+        out.separation_arcmin = score_prediction(m.exercise.brief, m.key, sol.prediction).separation_arcmin;
+        if (search_nights > 0 && ls.key == "all-on") out.found_night = search_run(m, sol, search_nights, data.seed);
     } catch (const std::exception&) {
-        return NAN;  // counted as failed
+        out.separation_arcmin = NAN;  // counted as failed, and as not found
+        out.found_night = 0;
     }
+    return out;
 }
 
 // Medians, 90th percentiles, failures, the quadrature sum of the sources and the all-on radii.
@@ -365,6 +390,20 @@ void summarise(BudgetResult& b, const BudgetOptions& o) {
         b.radius90 = quantile(on->separations_arcmin, 0.9);
         b.radius99 = quantile(on->separations_arcmin, 0.99);
     }
+    if (b.search_nights > 0) {
+        // Nights for a share q of the runs: the smallest n by which at least q of them had found the body.
+        std::vector<int> found;
+        for (int n : b.search_found_night)
+            if (n > 0) found.push_back(n);
+        std::sort(found.begin(), found.end());
+        b.search_found = static_cast<int>(found.size());
+        auto nights_for = [&](double q) {
+            const auto needed = static_cast<std::size_t>(std::ceil(q * static_cast<double>(b.search_found_night.size()) - 1e-9));
+            return needed >= 1 && needed <= found.size() ? static_cast<double>(found[needed - 1]) : NAN;
+        };
+        b.search_nights50 = nights_for(0.5);
+        b.search_nights90 = nights_for(0.9);
+    }
 }
 
 }  // namespace
@@ -381,6 +420,14 @@ BudgetResult run_budget(const Scenario& base, const BudgetOptions& o, std::ostre
     b.combined = o.combine;
 
     const SolveOptions so = base_solve_options(o, b.epoch_year);
+    if (o.search_nights < 0 || o.search_nights > 366) throw InputError("", 0, "--search-nights", "must be in [0, 366]");
+    if (o.search_nights > 0) {
+        if (!sc.telescope) throw InputError(sc.file, 0, "telescope", "the scenario has no [telescope] table, so --search-nights cannot search");
+        if (b.epoch_year + (o.search_nights + 2.0) / julian_year_days > sc.epoch0_year + sc.span_years)
+            throw InputError("", 0, "--search-nights", "the nights from the search epoch run past the scenario's span");
+        b.search_nights = o.search_nights;
+        b.search_found_night.assign(static_cast<std::size_t>(o.runs), 0);
+    }
     const BodySpec* hidden = hidden_spec(sc);
     MatchedPriors matched;
     matched.ecc = hidden ? matched_sigma(hidden->e, 0.01, 0.5, 0.3) : 0.3;
@@ -426,11 +473,12 @@ BudgetResult run_budget(const Scenario& base, const BudgetOptions& o, std::ostre
             ~Release() { c.release(r); }
         } release{cache, r};
         const auto data = cache.get(r, b.seeds[r]);
-        const double sep = solve_line(sc, *data, ls, so, matched);
+        const LineResult res = solve_line(sc, *data, ls, so, matched, o.search_nights);
         {
             std::lock_guard<std::mutex> lock(result_mutex);
             for (BudgetLine& l : b.lines)
-                if (l.key == ls.key) l.separations_arcmin[r] = sep;
+                if (l.key == ls.key) l.separations_arcmin[r] = res.separation_arcmin;
+            if (b.search_nights > 0 && ls.key == "all-on") b.search_found_night[r] = res.found_night;
         }
         const long done = ++finished;
         bar.update("budget solves", static_cast<double>(done) / static_cast<double>(tasks), done, static_cast<long>(tasks));

@@ -43,6 +43,8 @@ struct BudgetOptions {
     std::optional<double> mass_error;       // relative sigma of the known masses (default: the scenario's)
     std::vector<std::string> only;          // compute only these line keys (empty: every line)
     std::vector<std::string> combine;       // the sources the all-on line switches on together (empty: every one)
+    int search_nights = 0;                  // > 0: rehearse the telescope search of each all-on solution for this
+                                            // many nights from the search epoch (the scenario's telescope)
 };
 
 struct BudgetLine {
@@ -67,6 +69,13 @@ struct BudgetResult {
     std::vector<std::string> combined;      // the sources of the all-on line (empty: every one)
     double quadrature_median = NAN, quadrature_p90 = NAN;  // sqrt of the sum of squares over those sources
     double radius50 = NAN, radius90 = NAN, radius99 = NAN; // arcmin, quantiles of the all-on separations
+    // The search rehearsal of the all-on runs (search_nights > 0): per run the night of discovery (0: not found
+    // within the nights, or the solve failed), the count found, and the nights after which 50 % and 90 % of the
+    // runs had found the body (NaN: not within the nights).
+    int search_nights = 0;
+    std::vector<int> search_found_night;
+    int search_found = 0;
+    double search_nights50 = NAN, search_nights90 = NAN;
     const BudgetLine* line(const std::string& key) const;
 };
 

@@ -154,6 +154,8 @@ Command add_budget(CLI::App& app) {
     c->add_option("--only", bud.only, "compute only these lines (keys as in budget.csv)")->delimiter(',');
     c->add_option("--combine", bud.combine, "the sources the all-on line switches on together (default: every one)")->delimiter(',');
     c->add_option("--max-memory", bud.max_memory_gb, "address-space cap in GB (default 1 + 0.5 per thread; 0: none)");
+    c->add_option("--search-nights", bud.search_nights, "rehearse the all-on solutions' telescope search for N nights (0: no search)")
+        ->capture_default_str();
     c->add_flag("--quiet", bud.quiet, "no progress output");
     return {c, [args] { return run_budget_command(*args, std::cout, std::cerr); }};
 }

@@ -369,6 +369,7 @@ int run_budget_command(const BudgetArgs& args, std::ostream& out, std::ostream& 
     o.mass_error = args.mass_error;
     o.only = args.only;
     o.combine = args.combine;
+    o.search_nights = args.search_nights;
     apply_what_ifs(sc, o);  // every option checked before any work
     if (args.out_dir.empty()) throw InputError("", 0, "--out", "is required");
     std::error_code ec;

@@ -102,6 +102,7 @@ struct BudgetArgs {
     std::vector<std::string> only;
     std::vector<std::string> combine;
     double max_memory_gb = -1.0;
+    int search_nights = 0;               // > 0: rehearse the all-on solutions' telescope search for this many nights
     bool quiet = false;
 };
 // Prints the budget table and writes OUT/budget.csv, OUT/budget_runs.csv and OUT/budget.png.

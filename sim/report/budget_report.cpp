@@ -6,6 +6,7 @@
 #include <sstream>
 
 #include "sim/base/format.hpp"
+#include "sim/base/statistics.hpp"
 #include "sim/report/plot.hpp"
 #include "sim/report/text_table.hpp"
 
@@ -44,6 +45,14 @@ std::string budget_table(const BudgetResult& b) {
         t << "\nSearch radius holding 50% / 90% / 99% of the all-on runs: " << cell(b.radius50) << " / " << cell(b.radius90) << " / "
           << cell(b.radius99) << " arcmin (the scenario's field radius: " << detail::fmt("%g", b.field_radius_arcmin) << " arcmin)"
           << (b.runs < 100 ? "; with fewer than 100 runs the 99% radius is little more than the largest error seen" : "") << "\n";
+    if (b.search_nights > 0 && b.line("all-on")) {
+        const WilsonInterval wi = wilson_interval(b.search_found, static_cast<double>(b.search_found_night.size()));
+        auto nights = [](double v) { return std::isfinite(v) ? detail::fmt("%.0f", v) : std::string("-"); };
+        t << "Telescope search of the all-on solutions (" << b.search_nights << " nights from the search epoch, the scenario's telescope): found in "
+          << b.search_found << " of " << b.search_found_night.size() << " runs (95% Wilson interval " << detail::fmt("%.2f", wi.lo) << " to "
+          << detail::fmt("%.2f", wi.hi) << "); nights needed for 50% / 90% success: " << nights(b.search_nights50) << " / "
+          << nights(b.search_nights90) << " (-: not within " << b.search_nights << " nights)\n";
+    }
     return t.str();
 }
 
@@ -63,10 +72,15 @@ std::string budget_csv(const BudgetResult& b) {
 
 std::string budget_runs_csv(const BudgetResult& b) {
     std::ostringstream t;
-    t << "key,run,seed,separation_arcmin\n";
+    const bool search = b.search_nights > 0;
+    t << "key,run,seed,separation_arcmin" << (search ? ",search_night" : "") << "\n";
     for (const BudgetLine& l : b.lines)
-        for (std::size_t r = 0; r < l.separations_arcmin.size(); ++r)
-            t << l.key << "," << r << "," << b.seeds[r] << "," << (std::isfinite(l.separations_arcmin[r]) ? detail::fmt("%.6g", l.separations_arcmin[r]) : "") << "\n";
+        for (std::size_t r = 0; r < l.separations_arcmin.size(); ++r) {
+            t << l.key << "," << r << "," << b.seeds[r] << "," << (std::isfinite(l.separations_arcmin[r]) ? detail::fmt("%.6g", l.separations_arcmin[r]) : "");
+            // The all-on run's night of discovery (empty: not found within the nights); other lines are not searched.
+            if (search) t << "," << (l.key == "all-on" && b.search_found_night[r] > 0 ? std::to_string(b.search_found_night[r]) : std::string());
+            t << "\n";
+        }
     return t.str();
 }
 
