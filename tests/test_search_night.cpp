@@ -120,6 +120,21 @@ TEST_CASE("a bright body at the region's centre in clear weather is found on nig
     CHECK(separation(t.lon, t.lat, r.found_lon, r.found_lat) / arcsec < 3.0);
 }
 
+TEST_CASE("a revisit confirms a body whose motion the solution got wrong: any motion of a body beyond the known planets") {
+    // The solution's track stands still (its predicted motion is zero); the body moves by its true parallax.
+    // A revisit that demanded the predicted motion would take the body for two transients and never find it.
+    Solution s = solution_at_truth(10.0);
+    for (TrackPoint& q : s.prediction.track) {
+        q.lon = s.prediction.lon;
+        q.lat = s.prediction.lat;
+    }
+    const RehearsalResult r = rehearse(s, test_telescope(body_mag() + 3.0), 2);
+    CHECK(r.found);
+    CHECK(r.false_confirmations == 0);
+    const TrackPoint t = world().truth->at_year(r.found_year);
+    CHECK(separation(t.lon, t.lat, r.found_lon, r.found_lat) / arcsec < 3.0);
+}
+
 TEST_CASE("a body 3 magnitudes below the limit is never found") {
     const RehearsalResult r = rehearse(solution_at_truth(10.0), test_telescope(body_mag() - 3.0), 3);
     CHECK(!r.found);

@@ -87,6 +87,10 @@ struct NightContext {
     double epoch0_year = 0.0;
     double rate_pred = 0.0;   // radians/day
     double gap_minutes = 60.0;
+    // What "a body beyond the known planets" means to the revisit: at least this far from the observer, and moving
+    // on its own orbit no faster than a circular orbit at the outermost known planet's distance.
+    double min_distance_au = 1.0;
+    double max_own_speed_au_per_day = 0.0;
     std::uint64_t visit_counter = 0;
 };
 
@@ -129,16 +133,33 @@ void searched(NightContext& c, const Field& f, double t) {
 }
 
 // Settles the pending candidates with a revisit's candidates. Returns true when the body is confirmed. A mover
-// must have gone at least 5 sigma, and its displacement must match the motion the team's predicted track gives
-// (the apparent motion is mostly the observer's parallax, which the team knows well) to within half of it plus
-// 5 sigma, which keeps two unrelated transients from passing for one moving body.
+// must have gone at least 5 sigma, and its displacement must be one a body beyond the known planets could make:
+// the observer's own displacement between the visits seen from some distance D at least min_distance_au (the
+// parallactic motion -dx_perp / D, which the team knows well from its own orbit), plus the body's own orbital
+// motion over D (at most the circular speed at the outermost known planet), plus 5 sigma. This does not lean on
+// the solution's predicted rate, which is wrong whenever the solution's distance or phase is, and it keeps two
+// unrelated transients from passing for one moving body.
+Vec3 unit_of(double lon, double lat) { return {std::cos(lat) * std::cos(lon), std::cos(lat) * std::sin(lon), std::sin(lat)}; }
+
+// The distance from the displacement (east, north, radians) that a body beyond the known planets could have made
+// between days t0 and t1 from direction (lon, lat); 0 when it fits such a body exactly.
+double beyond_known_miss(const NightContext& c, double lon, double lat, double t0, double t1, double east, double north) {
+    const Vec3 u = unit_of(lon, lat);
+    const Vec3 e(-std::sin(lon), std::cos(lon), 0.0);
+    const Vec3 n(-std::sin(lat) * std::cos(lon), -std::sin(lat) * std::sin(lon), std::cos(lat));
+    const Vec3 dx = c.team_path(t1) - c.team_path(t0);
+    const Vec3 perp = dx - u * u.dot(dx);
+    const double px = -perp.dot(e), py = -perp.dot(n);  // the parallactic displacement times the distance
+    const double s_max = 1.0 / c.min_distance_au;       // the largest inverse distance allowed
+    const double p2 = px * px + py * py;
+    const double s = p2 > 0.0 ? std::clamp((east * px + north * py) / p2, 0.0, s_max) : 0.0;
+    const double own = c.max_own_speed_au_per_day * std::abs(t1 - t0) * s_max;  // own motion, at most
+    return std::max(0.0, std::hypot(east - s * px, north - s * py) - own);
+}
+
 bool settle(NightContext& c, Pending& p, const Exposure& again, double t, VisitRecord& v) {
     const double sigma2 = std::sqrt(2.0) * c.tel.astrometric_error_arcsec * arcsec;
-    double l0 = 0.0, b0 = 0.0, l1 = 0.0, b1 = 0.0;
-    region_centre(c.region, decimal_year(c.epoch0_year, p.first_t), l0, b0);
-    region_centre(c.region, decimal_year(c.epoch0_year, t), l1, b1);
-    const double exp_x = wrap_pi(l1 - l0) * std::cos(b0), exp_y = b1 - b0;
-    const double tolerance = 0.5 * std::hypot(exp_x, exp_y) + 5.0 * sigma2;
+    const double tolerance = 5.0 * sigma2;
     std::vector<Detection> still_open;
     bool found = false;
     for (const Detection& a : p.candidates) {
@@ -147,7 +168,7 @@ bool settle(NightContext& c, Pending& p, const Exposure& again, double t, VisitR
         for (const Detection& b : again.candidates) {
             const double d = sep(a, b);
             nearest = std::min(nearest, d);
-            const double miss = std::hypot(wrap_pi(b.lon - a.lon) * std::cos(a.lat) - exp_x, b.lat - a.lat - exp_y);
+            const double miss = beyond_known_miss(c, a.lon, a.lat, p.first_t, t, wrap_pi(b.lon - a.lon) * std::cos(a.lat), b.lat - a.lat);
             if (d >= 5.0 * sigma2 && miss <= tolerance && (!mover || d < sep(a, *mover))) mover = &b;
         }
         if (nearest < 3.0 * sigma2) {
@@ -356,6 +377,15 @@ RehearsalResult run_rehearsal(const Brief& brief, const Solution& solution, cons
     const double rate = std::hypot(wrap_pi(l1 - l0) * std::cos(b0), b1 - b0);  // radians per day
     NightContext c{tel, site, team_path, truth, sky_model, out.region, std::vector<bool>(out.region.samples.size(), false),
                    out, opt, brief.epoch0_year, rate, revisit_gap_minutes(rate, tel.astrometric_error_arcsec)};
+    {   // Beyond the known planets: farther than the outermost one less the observer's own distance from the star.
+        double outer = 0.0, observer = 1.0;
+        for (const BriefPlanet& p : brief.planets) {
+            outer = std::max(outer, p.elements.semi_major_axis * (1.0 + p.elements.eccentricity));
+            if (p.observer) observer = p.elements.semi_major_axis * (1.0 + p.elements.eccentricity);
+        }
+        c.min_distance_au = std::max(0.5, outer - observer);
+        c.max_own_speed_au_per_day = std::sqrt(gm_from_mass(brief.star_mass) / std::max(outer, 0.5));
+    }
 
     {   // Revealed only in the summary at the end.
         const BodyInField b = truth.body(nights.front().dark_start_days);
