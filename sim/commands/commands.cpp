@@ -1,6 +1,7 @@
 // Implementations of the `wayward` commands.
 #include "sim/commands/commands.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <filesystem>
 #include <iomanip>
@@ -105,6 +106,17 @@ int run_new(const NewArgs& args, std::ostream& out) {
     out << "Search epoch(s):";
     for (double y : sc.plan.search_epochs_year) out << " " << y;
     out << "; field radius " << sc.plan.field_radius_deg << " deg\n";
+    // For the trainer who runs `new` (the trainee's folder carries nothing of it): a search epoch at which the
+    // hidden body itself stands within the elongation limit cannot end at the telescope.
+    if (const auto h = truth.hidden_index())
+        for (double y : sc.plan.search_epochs_year) {
+            const double days = std::clamp(days_from_year(sc.epoch0_year, y), run.ephemeris.t_begin(), run.ephemeris.t_end());
+            const double e_deg = elongation(run.ephemeris, truth.system.observer_index(), *h, days) / deg;
+            if (e_deg < sc.plan.elongation_limit_deg)
+                out << "Trainer's note (not in the exercise folder): at the search epoch " << y << " the hidden body is "
+                    << std::setprecision(3) << e_deg << " deg from the star, inside the elongation limit of "
+                    << sc.plan.elongation_limit_deg << " deg: it cannot be searched then.\n" << std::setprecision(6);
+        }
     return 0;
 }
 
@@ -137,6 +149,7 @@ int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& pr
 }  // namespace wayward
 
 #include "sim/base/progress.hpp"
+#include "sim/predict/near_star.hpp"
 #include "sim/score/score.hpp"
 #include "sim/io/toml_reader.hpp"
 
@@ -218,6 +231,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
         << p.sampled_semi_minor_arcsec / 60 << " arcmin; 90% of samples within " << p.radius90_arcsec / 60 << " arcmin\n";
     out << "  search field radius: " << ex.brief.field_radius_deg * 60 << " arcmin\n";
     out << std::defaultfloat;
+    if (const std::string c = near_star_caution(near_star(ex.brief, p), p.epoch_year); !c.empty()) out << c << "\n";
     out << "Wrote " << args.dir << "/solution.toml\n";
     return 0;
 }
@@ -274,6 +288,12 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
     out << "Predicted: λ = " << sc.predicted_lon / deg << " deg, β = " << sc.predicted_lat / deg << " deg\n";
     out << "Separation: " << sc.separation_arcmin << " arcmin; field radius " << sc.field_radius_deg * 60 << " arcmin: "
         << (sc.hit ? "HIT" : "MISS") << "\n";
+    {   // A hit the telescope could not have taken: the region (or the trainee's field) reaches into the star's glare.
+        const NearStar n = (own || !args.prediction_file.empty())
+                               ? near_star(ex.brief, p.epoch_year, p.lon, p.lat, ex.brief.field_radius_deg * 3600.0)
+                               : near_star(ex.brief, p);
+        if (const std::string c = near_star_caution(n, p.epoch_year); !c.empty()) out << c << "\n";
+    }
     if (sc.mahalanobis) out << "Normalised error (Mahalanobis): " << *sc.mahalanobis << " sigma\n";
     out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
         << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "

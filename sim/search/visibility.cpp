@@ -61,21 +61,6 @@ double altitude_of(const Site& site, const Vec3& direction, double t_days) {
     return horizon_from_hour_angle(sidereal - ra, dec, site.latitude).altitude;
 }
 
-ObserverPath kepler_observer_path(const Brief& brief) {
-    const System sys = known_model_system(brief);
-    const std::size_t obs = brief.observer_index();
-    const ObserverFrame frame = observer_frame(sys, sys.observer_index());
-    const BriefPlanet& p = brief.planets[obs];
-    const double mu = gm_from_mass(brief.star_mass) + gm_from_mass(p.mass);
-    const Elements el0 = p.elements;
-    const double n = mean_motion(el0.semi_major_axis, mu);
-    return [frame, el0, mu, n](double t) {
-        Elements el = el0;
-        el.mean_anomaly = wrap_two_pi(el0.mean_anomaly + n * t);
-        return frame.to_frame(elements_to_state(el, mu).position);
-    };
-}
-
 PointingCheck check_pointing(const Site& site, const ObserverPath& path, const Vec3& direction, double t_days) {
     PointingCheck c;
     const Vec3 star = -path(t_days);

@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "sim/exercise/exercise.hpp"
+#include "sim/exercise/observer_path.hpp"
 #include "sim/exercise/telescope.hpp"
 #include "sim/physics/geometry.hpp"
 
@@ -46,12 +47,6 @@ void equatorial_of(const Site& site, const Vec3& direction, double& ra, double& 
 double hour_angle(const Site& site, const Vec3& direction, double t_days);
 // Altitude of a direction at day t.
 double altitude_of(const Site& site, const Vec3& direction, double t_days);
-
-// The observer planet's heliocentric position (au, observer frame) at a day.
-using ObserverPath = std::function<Vec3(double t_days)>;
-// The team's own path: Kepler's orbit from the brief's elements of its planet (which the team knows far better
-// than any outer planet's), turned into the observer's frame.
-ObserverPath kepler_observer_path(const Brief& brief);
 
 enum class Pointing { ok, daylight, too_low, too_near_star };
 struct PointingCheck {
