@@ -149,7 +149,7 @@ TEST_CASE("calibration: the truth falls inside the 1-sigma and 2-sigma ellipses 
     CHECK(std::abs(f90 - 0.90) <= 0.06);
 }
 
-TEST_CASE("the luck of the epoch (classic, as its header says): the rule's distance fixed fits badly, is close near the data and misses decades away; as a prior the data overrule it") {
+TEST_CASE("the luck of the epoch on classic as its header says: the rule's distance fixed fits badly and is close only near the data while the data overrule it as a prior") {
     // Harrowgate (classic): the spacing rule fitted to the known planets puts the next planet about 25% beyond
     // the hidden body. Fixing the distance there, the fit trades distance for mass and phase: the predicted
     // track agrees with the truth where the data constrain the body best and drifts off away from it.

@@ -203,6 +203,14 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
         throw as_flag_error(e);
     }
     bar.finish();
+    const DetectionTest& d = s.detection;
+    if (!d.detected() && !args.point_anyway) {
+        out << std::setprecision(4) << "No detection: the record does not demand a hidden body. Adding the best one ("
+            << s.detection.parameters << " parameters) lowers chi2 by " << std::max(0.0, d.delta_chi2) << "; a detection needs "
+            << d.threshold << " (false-alarm rate " << 100.0 * d.alpha << "% over " << d.trials << " trial orbits).\n"
+            << "No pointing written. `wayward solve " << args.dir << " --point-anyway` writes the best solution regardless.\n";
+        return 0;
+    }
     const WriterLock lock(args.dir, "DIR", LockWait::wait);  // as in residuals: one writer, leftovers swept
     remove_stale_temporaries(args.dir);
     write_file_atomic(args.dir + "/solution.toml", solution_toml(s));
@@ -221,6 +229,16 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     if (s.spacing_rule_au > 0) out << "  (the spacing rule's next distance is " << s.spacing_rule_au << " au)\n";
     out << "  mass-distance correlation: " << s.mass_distance_correlation << "\n";
     out << "  chi2 = " << s.chi2 << " for " << s.dof << " degrees of freedom" << (s.covariance_scaled ? " (covariance scaled by chi2/dof: some eras' sigma was estimated)" : "") << "\n";
+    if (s.goodness.poor())
+        out << "  Poor fit: with every sigma recorded, chi2 this high has probability " << s.goodness.p_value
+            << ": a wrong minimum or unmodelled systematics. The covariance is widened by chi2/dof = " << s.chi2 / static_cast<double>(s.dof)
+            << "; treat the region with suspicion.\n";
+    if (s.clipping.newly_set_aside || s.clipping.restored)
+        out << "  the solve's clipping (beyond 4 sigma of the hidden-body model) set aside " << s.clipping.newly_set_aside
+            << " observations the known-bodies fit had kept, and restored " << s.clipping.restored << "\n";
+    out << "  detection: adding the hidden body lowers chi2 by " << std::max(0.0, d.delta_chi2) << " for " << d.parameters
+        << " parameters; a detection needs " << d.threshold << " (false-alarm rate " << 100.0 * d.alpha << "% over " << d.trials
+        << " trial orbits): " << (d.detected() ? "detected" : "NOT detected (written because of --point-anyway)") << "\n";
     const Prediction& p = s.prediction;
     out << std::fixed << std::setprecision(3);
     out << "Prediction for " << std::setprecision(2) << p.epoch_year << std::setprecision(3) << ": λ = " << p.lon / deg << " deg, β = "

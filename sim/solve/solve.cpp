@@ -363,6 +363,28 @@ void set_covariance(Solution& sol, const Problem& prob, const LeastSquaresResult
     sol.fit.covariance = std::move(C);
 }
 
+// ---- is a body demanded at all, and does the model fit (detection.hpp) ----
+void check_fit(Solution& sol, const KnownFit& known, const KnownWeights& before, const Problem& prob,
+               const LeastSquaresResult& best, const SolveOptions& o) {
+    const ModelSetup& setup = *prob.setup;
+    Eigen::VectorXd r;
+    if (!prob.evaluate(best.x, r)) r = Eigen::VectorXd::Constant(static_cast<Eigen::Index>(prob.residual_count()), INFINITY);
+    // The trials: every grid cell is a distinct trial orbit (the starts refine a few of them).
+    const int trials = std::max(1, o.grid_distances * o.grid_longitudes);
+    sol.detection = detection_test(known, before, setup, r, static_cast<int>(prob.layout().names.size()), trials);
+    sol.goodness = goodness_of_fit(sol.chi2, sol.dof, setup.weights_estimated());
+    sol.clipping = clipping_change(before, setup);
+    // A fit far above its chi2 with every sigma recorded: the stated region must not pretend otherwise.
+    if (sol.goodness.poor() && !sol.covariance_scaled) {
+        const double f = sol.chi2 / static_cast<double>(sol.dof);
+        sol.fit.covariance *= f;
+        sol.hidden_covariance *= f;
+        sol.mass_sigma *= std::sqrt(f);
+        sol.distance_sigma_au *= std::sqrt(f);
+        sol.covariance_widened = true;
+    }
+}
+
 }  // namespace
 
 PredictOptions prediction_options(const SolveOptions& o) {
@@ -387,6 +409,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     auto known = std::make_shared<KnownFit>(fit_known(ex, o.model));
     ModelSetup& setup = known->setup;
 
+    const KnownWeights before = known_weights(setup);  // the solve changes weights and clipping; the tests compare
     Solution sol;
     sol.exercise_sha256 = ex.brief.answer_key_sha256;
     sol.scenario_name = ex.brief.scenario_name;
@@ -413,6 +436,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     sol.best = prob.hidden(best.x);
     sol.chi2 = best.chi2;
     set_covariance(sol, prob, best);
+    check_fit(sol, *known, before, prob, best, o);
     sol.fit.reference = prob.fit.reference;
     sol.fit.layout = prob.fit.layout;
     sol.fit.best = best.x;

@@ -23,6 +23,7 @@
 
 #include "sim/fit/known_fit.hpp"
 #include "sim/predict/predict.hpp"
+#include "sim/solve/detection.hpp"
 #include "sim/solve/solve_options.hpp"
 
 namespace wayward {
@@ -51,6 +52,10 @@ struct Solution {
     bool covariance_scaled = false;
     double spacing_rule_au = 0.0;   // the rule's next distance (0 if fewer than 2 known planets)
     int model_runs = 0;
+    DetectionTest detection;            // is a hidden body demanded at all (known-bodies model against this one)
+    GoodnessOfFit goodness;         // chi2 against its distribution where every sigma was recorded
+    ClippingChange clipping;        // observations set aside (or restored) by the solve against the known fit
+    bool covariance_widened = false;  // by chi2/dof because the fit is poor for recorded sigma
     Prediction prediction;
     // In memory only (not in solution.toml): what the predictor needs to predict this solution at other epochs.
     std::shared_ptr<const ModelSetup> setup;   // the model with the weights the solve ended with
