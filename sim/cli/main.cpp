@@ -28,7 +28,7 @@ Command add_ephemeris(CLI::App& app) {
     EphemerisArgs& eph = *args;
     auto* c = app.add_subcommand("ephemeris", "print barycentric states and apparent positions of every body (CSV)");
     c->add_option("scenario", eph.scenario, "scenario file (TOML)")->required();
-    c->add_option("--at", eph.days, "days after epoch 0 (comma-separated)")->delimiter(',')->required();
+    c->add_option("--at", eph.at, "times, comma-separated: days after epoch 0 (365.25 or 365.25d), years (1955.25yr) or dates (1955-03-21)")->delimiter(',')->required();
     c->add_option("--seed", eph.seed, "seed for scenarios that draw their values")->capture_default_str();
     c->add_option("--method", eph.method, "integration method (rkf78, dopri5, bulirsch-stoer)")->capture_default_str();
     return {c, [args] { return run_ephemeris(*args, std::cout); }};
@@ -75,6 +75,7 @@ Command add_solve(CLI::App& app) {
     c->add_option("--threads", sv.threads, "threads (0: all cores; results do not depend on it)")->capture_default_str();
     c->add_flag("--quiet", sv.quiet, "no progress output");
     c->add_flag("--neglect-light-time", sv.neglect_light_time, "leave light time out of the model");
+    c->add_option("--out", sv.out_file, "solution file to write (default EXERCISE/solution.toml)");
     return {c, [args] { return run_solve(*args, std::cout, std::cerr); }};
 }
 

@@ -6,6 +6,7 @@
 #include <sstream>
 
 #include "sim/base/format.hpp"
+#include "sim/io/fileio.hpp"
 #include "sim/report/plot.hpp"
 #include "sim/report/text_table.hpp"
 
@@ -52,7 +53,7 @@ std::string budget_csv(const BudgetResult& b) {
     t << "key,label,present,runs,failed,median_arcmin,p90_arcmin\n";
     auto f = [](double v) { return std::isfinite(v) ? detail::fmt("%.6g", v) : std::string(); };
     for (const BudgetLine& l : b.lines)
-        t << l.key << ",\"" << l.label << "\"," << (l.present ? 1 : 0) << "," << (l.present ? b.runs : 0) << "," << l.failed << ","
+        t << csv_cell(l.key) << "," << csv_cell(l.label) << "," << (l.present ? 1 : 0) << "," << (l.present ? b.runs : 0) << "," << l.failed << ","
           << f(l.median) << "," << f(l.p90) << "\n";
     t << "quadrature-sum,\"quadrature sum of the single sources\",1," << b.runs << ",0," << f(b.quadrature_median) << "," << f(b.quadrature_p90) << "\n";
     t << "search-radius-50,\"all-on runs within this radius: 50%\",1," << b.runs << ",0," << f(b.radius50) << ",\n";
@@ -66,7 +67,7 @@ std::string budget_runs_csv(const BudgetResult& b) {
     t << "key,run,seed,separation_arcmin\n";
     for (const BudgetLine& l : b.lines)
         for (std::size_t r = 0; r < l.separations_arcmin.size(); ++r)
-            t << l.key << "," << r << "," << b.seeds[r] << "," << (std::isfinite(l.separations_arcmin[r]) ? detail::fmt("%.6g", l.separations_arcmin[r]) : "") << "\n";
+            t << csv_cell(l.key) << "," << r << "," << b.seeds[r] << "," << (std::isfinite(l.separations_arcmin[r]) ? detail::fmt("%.6g", l.separations_arcmin[r]) : "") << "\n";
     return t.str();
 }
 

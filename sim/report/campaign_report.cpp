@@ -22,7 +22,6 @@ namespace fs = std::filesystem;
 
 namespace {
 
-constexpr int resamples = 2000;
 constexpr double level = 0.95;
 
 // The rows grouped by settings and epoch, and by scenario and settings, in the order they first appear.
@@ -82,7 +81,7 @@ public:
         std::size_t first = 10;
         for (const std::string& n : g.settings) first = std::max(first, n.size() + 2);
         for (const std::string& n : g.scenarios) first = std::max(first, n.size() + 2);
-        cols_ = {{"settings", first}, {offsets ? "epoch (±yr)" : "epoch", 12}, {"cases", 7}, {"success", 9}, {"interval", 15},
+        cols_ = {{"settings", first}, {offsets ? "epoch (±yr)" : "epoch", 12}, {"cases", 7}, {"success", 9}, {"interval", 17},
                  {"median sep", 12}, {"90% sep", 10}, {"in 1σ", 7}, {"in 2σ", 7}, {"r90 holds", 11}, {"luck", 7}, {"closest − centre", 18}};
     }
     void header(const std::string& first) {
@@ -90,7 +89,7 @@ public:
         for (std::size_t k = 1; k < cols_.size(); ++k) t_ << pad(cols_[k].first, cols_[k].second);
         t_ << "\n";
     }
-    RateInterval line(const std::string& a, const std::string& b, const std::vector<const CaseRow*>& g, std::uint64_t seed) {
+    RateInterval line(const std::string& a, const std::string& b, const std::vector<const CaseRow*>& g) {
         std::vector<bool> hits;
         std::vector<double> sep, luck, closest;
         for (const CaseRow* r : g) {
@@ -101,7 +100,7 @@ public:
                 closest.push_back(r->closest_minus_centre_years());
             }
         }
-        const RateInterval ri = bootstrap_rate(hits, resamples, level, seed);
+        const RateInterval ri = wilson_rate(hits, level);
         auto in_sigma = [](double k) {
             return [k](const CaseRow& r) -> std::optional<bool> { if (!r.mahalanobis) return std::nullopt; return r.inside_sigma(k); };
         };
@@ -111,7 +110,7 @@ public:
         };
         const std::vector<std::string> cells = {
             a, b, std::to_string(g.size()), table_number("%.2f", ri.rate),
-            "[" + table_number("%.2f", ri.lo) + ", " + table_number("%.2f", ri.hi) + "]",
+            "[" + table_number("%.2f", ri.lo) + ", " + table_number("%.2f", ri.hi) + "]" + (g.size() < small_sample_cases ? " ~" : "  "),
             table_number("%.2f", quantile(sep, 0.5)), table_number("%.2f", quantile(sep, 0.9)),
             table_number("%.2f", fraction(g, in_sigma(1.0))), table_number("%.2f", fraction(g, in_sigma(2.0))),
             table_number("%.2f", fraction(g, r90)), table_number("%.2f", quantile(luck, 0.5)), table_number("%+.1f", quantile(closest, 0.5))};
@@ -131,8 +130,8 @@ std::string summary_text(const std::vector<CaseRow>& rows, const CampaignManifes
     if (!m.merged_from.empty()) t << " (merged from " << m.merged_from.size() << " folders)";
     t << "\n" << rows.size() << " cases: " << g.scenarios.size() << " scenario(s), " << g.seeds.size() << " system(s), " << g.settings.size()
       << " setting(s), " << g.x_value.size() << " epoch(s); " << g.failed << " failed\n\n";
-    t << "success: the true position within the field radius of the prediction at the epoch; interval: 95% percentile\n"
-         "bootstrap over the cases (" << resamples << " resamples). in 1σ, in 2σ: the truth inside the predicted 1σ or 2σ\n"
+    t << "success: the true position within the field radius of the prediction at the epoch; interval: 95% Wilson score\n"
+         "interval (~: fewer than " << small_sample_cases << " cases, a small sample: the rate is rough). in 1σ, in 2σ: the truth inside the predicted 1σ or 2σ\n"
          "ellipse (Gaussian errors would put it there 39% and 86% of the time). r90 holds: within the radius holding 90%\n"
          "of the covariance samples. luck: fraction of the luck window inside the field. closest − centre: year of closest\n"
          "agreement minus the data's centre (the σ-weighted mean observation time). Separations in arcmin; failed cases\n"
@@ -143,7 +142,7 @@ std::string summary_text(const std::vector<CaseRow>& rows, const CampaignManifes
         const double x = g.x_value.at(key.second);
         const std::string epoch = m.epochs_are_offsets ? table_number("%+g", x) : table_number("%g", x);
         const RateInterval ri =
-            table.line(g.settings[key.first], epoch, group, derive_seed(key.first, "campaign-bootstrap-epoch", static_cast<std::uint64_t>(key.second)));
+            table.line(g.settings[key.first], epoch, group);
         curves.x[key.first].push_back(x);
         curves.rate[key.first].push_back(ri.rate);
         curves.lo[key.first].push_back(ri.lo);
@@ -153,7 +152,7 @@ std::string summary_text(const std::vector<CaseRow>& rows, const CampaignManifes
         t << "\nBy scenario (all epochs together):\n";
         table.header("scenario");
         for (const auto& [key, group] : g.by_scenario)
-            table.line(g.scenarios[key.first], g.settings[key.second], group, derive_seed(key.first, "campaign-bootstrap-scenario", key.second));
+            table.line(g.scenarios[key.first], g.settings[key.second], group);
     }
     if (g.failed) {
         t << "\nFailed cases:\n";
@@ -171,7 +170,7 @@ void plot_success(const CampaignManifest& m, const Groups& g, const Curves& c, c
     plot::Figure f;
     f.title = title;
     plot::Panel p;
-    p.title = "success rate against search epoch, with 95% bootstrap bands";
+    p.title = "success rate against search epoch, with 95% Wilson bands";
     p.x_label = m.epochs_are_offsets ? "search epoch − the scenario's search epoch (years)" : "search epoch (year)";
     p.y_label = "success rate";
     p.y_range = std::make_pair(-0.02, 1.02);
