@@ -131,11 +131,11 @@ std::string summary_text(const std::vector<CaseRow>& rows, const CampaignManifes
     t << "\n" << rows.size() << " cases: " << g.scenarios.size() << " scenario(s), " << g.seeds.size() << " system(s), " << g.settings.size()
       << " setting(s), " << g.x_value.size() << " epoch(s); " << g.failed << " failed\n\n";
     t << "success: the true position within the field radius of the prediction at the epoch; interval: 95% Wilson score\n"
-         "interval (~: fewer than " << small_sample_cases << " cases, a small sample: the rate is rough). in 1σ, in 2σ: the truth inside the predicted 1σ or 2σ\n"
-         "ellipse (Gaussian errors would put it there 39% and 86% of the time). r90 holds: within the radius holding 90%\n"
-         "of the covariance samples. luck: fraction of the luck window inside the field. closest − centre: year of closest\n"
-         "agreement minus the data's centre (the σ-weighted mean observation time). Separations in arcmin; failed cases\n"
-         "count as misses.\n\n";
+         "interval (~: fewer than " << small_sample_cases << " cases, a small sample, so the rate is rough). in 1σ, in 2σ: the truth\n"
+         "inside the predicted 1σ or 2σ ellipse (Gaussian errors would put it there 39% and 86% of the time). r90 holds:\n"
+         "within the radius holding 90% of the covariance samples. luck: fraction of the luck window inside the field.\n"
+         "closest − centre: year of closest agreement minus the data's centre (the σ-weighted mean observation time).\n"
+         "Separations in arcmin; failed cases count as misses.\n\n";
     SummaryTable table(t, g, m.epochs_are_offsets);
     table.header("settings");
     for (const auto& [key, group] : g.by_epoch) {

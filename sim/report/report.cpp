@@ -5,6 +5,7 @@
 #include <cmath>
 #include <cstdio>
 #include <iomanip>
+#include <set>
 
 #include "sim/fit/residual_summary.hpp"
 #include "sim/report/plot.hpp"
@@ -34,6 +35,7 @@ plot::Figure residuals_figure(const ModelSetup& setup, const std::vector<std::ar
     fig.title = title;
     fig.share_x = true;
     fig.height_per_panel = 260;
+    std::set<std::string> legend_labels;
     for (std::size_t p = 0; p < setup.planets.size(); ++p) {
         const std::string name = setup.known.bodies[setup.planets[p]].name;
         for (int c = 0; c < 2; ++c) {
@@ -78,14 +80,17 @@ plot::Figure residuals_figure(const ModelSetup& setup, const std::vector<std::ar
                     if (!std::isfinite(v)) continue;
                     plot::Series& into = std::abs(v) > lim ? beyond : f.rejected ? set_aside : s;
                     into.x.push_back(year);
-                    into.y.push_back(std::abs(v) > lim ? std::copysign(lim, v) : v);
+                    // At 97% of the edge, so the whole marker shows inside the frame.
+                    into.y.push_back(std::abs(v) > lim ? std::copysign(0.97 * lim, v) : v);
                 }
                 if (!s.x.empty()) panel.series.push_back(std::move(s));
             }
             if (!set_aside.x.empty()) panel.series.push_back(std::move(set_aside));
             if (!beyond.x.empty()) panel.series.push_back(std::move(beyond));
             panel.lines.push_back({0.0, true, "", std::nullopt, false});
-            panel.legend = (p == 0 && c == 0) || panel.series.size() > setup.eras.size();
+            // A legend on the first panel, and on any later one that shows a kind of point not explained above.
+            panel.legend = false;
+            for (const plot::Series& s : panel.series) panel.legend = legend_labels.insert(s.label).second || panel.legend;
             fig.panels.push_back(std::move(panel));
         }
     }
