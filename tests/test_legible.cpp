@@ -190,15 +190,22 @@ TEST_CASE("no command overwrites what an earlier command wrote: solve --out, sco
         return r.output;
     };
     seen = folder_files(dir);
-    step("residuals " + d + " --quiet", "residuals.csv");
+    step("residuals " + d + " --quiet --svg", "residuals.svg");
     step("solve " + d + " --quiet --starts 1 --samples 20", "solution.toml");
-    step("score " + d, "luck.csv");
+    step("score " + d + " --svg", "luck.svg");
     const std::string epoch = std::to_string(load_exercise(d).brief.search_epochs_year.front());
     step("score " + d + " --lon 10 --lat 0 --epoch " + epoch, "luck_own.csv");
     const std::string wrote = step("solve " + d + " --quiet --starts 1 --samples 20 --coplanar --out " + d + "/coplanar.toml", "coplanar.toml");
     CHECK(wrote.find("Wrote " + d + "/coplanar.toml\n") != std::string::npos);
     step("score " + d + " --solution " + d + "/coplanar.toml", "luck_coplanar.csv");
+    for (const char* svg : {"residuals.svg", "luck.svg"}) {
+        const std::string text = testing::read(dir / svg);
+        CHECK(text.rfind("<?xml", 0) == 0);
+        CHECK(text.find("<svg") != std::string::npos);
+    }
+    CHECK(!fs::exists(dir / "luck_own.svg"));  // --svg only where asked
     fs::remove_all(dir);
+    fs::remove_all(d + "-answer-key");
 }
 
 TEST_CASE("budget table: each source's share of the quadrature sum, the all-on gap explained, small samples said") {

@@ -11,6 +11,7 @@
 #include "sim/commands/commands.hpp"
 #include "sim/commands/search_command.hpp"
 #include "sim/base/errors.hpp"
+#include "sim/report/plot.hpp"
 
 namespace {
 
@@ -166,6 +167,11 @@ int main(int argc, char** argv) {
     app.set_version_flag("--version", std::string("wayward ") + WAYWARD_VERSION);
     app.require_subcommand(1);
     const std::vector<Command> commands = {add_ephemeris(app), add_new(app), add_residuals(app), add_solve(app), add_score(app), add_search(app), add_campaign(app), add_merge(app), add_budget(app)};
+    // Every command that draws a figure takes --svg: each PNG gets an SVG copy beside it.
+    bool svg = false;
+    for (const Command& c : commands)
+        if (const std::string n = c.app->get_name(); n == "residuals" || n == "score" || n == "search" || n == "campaign" || n == "merge" || n == "budget")
+            c.app->add_flag("--svg", svg, "also write each figure as SVG (vector graphics) beside its PNG, same name");
 
     try {
         app.parse(argc, argv);
@@ -180,6 +186,7 @@ int main(int argc, char** argv) {
         const int rc = app.exit(e);
         return rc == 0 ? 0 : 2;
     }
+    plot::set_svg_copies(svg);
     try {
         for (const Command& c : commands)
             if (c.app->parsed()) return c.run();

@@ -173,7 +173,7 @@ void plot_success(const CampaignManifest& m, const Groups& g, const Curves& c, c
     p.title = "success rate against search epoch, with 95% Wilson bands";
     p.x_label = m.epochs_are_offsets ? "search epoch − the scenario's search epoch (years)" : "search epoch (year)";
     p.y_label = "success rate";
-    p.y_range = std::make_pair(-0.02, 1.02);
+    p.y_range = std::make_pair(-0.06, 1.06);  // rates of 0 and 1 sit clear of the frame
     for (std::size_t s = 0; s < g.settings.size(); ++s) {
         plot::Series ser;
         ser.label = g.settings[s];
@@ -198,14 +198,36 @@ std::optional<std::pair<double, double>> value_range(const std::vector<double>& 
     return std::make_pair(*lo, *hi > *lo ? *hi : *lo + 1.0);
 }
 
+// A histogram drawn as its outline (a step line from 0 up and back to 0), so that the histograms of several
+// settings overlap without blending into a colour no legend names; the second and later ones dashed, so equal
+// outlines stay apart. With `log_edges` the bins were taken in log10 and the edges are turned back into values.
+plot::Series outline_series(const plot::Histogram& h, const std::string& label, std::size_t index, bool log_edges) {
+    plot::Series s;
+    s.label = label;
+    s.style = plot::Style::step;
+    s.width = 2.0;
+    s.dashed = index > 0;
+    if (h.edges.empty()) return s;
+    auto edge = [&](double e) { return log_edges ? std::pow(10.0, e) : e; };
+    s.x.push_back(edge(h.edges.front()));
+    s.y.push_back(0.0);
+    for (std::size_t k = 0; k < h.counts.size(); ++k) {
+        s.x.push_back(edge(h.edges[k]));
+        s.y.push_back(h.counts[k]);
+    }
+    s.x.push_back(edge(h.edges.back()));
+    s.y.push_back(0.0);
+    return s;
+}
+
 void plot_histograms(const std::vector<CaseRow>& rows, const Groups& g, const std::string& title, const std::string& path,
                      const std::string& panel_title, const std::string& label, const std::function<double(const CaseRow&)>& value,
-                     std::optional<std::pair<double, double>> range, const std::vector<plot::RefLine>& lines) {
+                     std::optional<std::pair<double, double>> range, const std::vector<plot::RefLine>& lines, bool log_x = false) {
     std::vector<std::vector<double>> v(g.settings.size());
     std::vector<double> all;
     for (const CaseRow& r : rows) {
         if (!r.ok) continue;
-        const double x = value(r);
+        const double x = log_x ? (value(r) > 0 ? std::log10(value(r)) : NAN) : value(r);
         if (!std::isfinite(x)) continue;
         v[g.settings_index(r.settings)].push_back(x);
         all.push_back(x);
@@ -217,8 +239,9 @@ void plot_histograms(const std::vector<CaseRow>& rows, const Groups& g, const st
     p.title = panel_title;
     p.x_label = label;
     p.y_label = "cases";
+    p.log_x = log_x;
     for (std::size_t s = 0; s < g.settings.size(); ++s)
-        p.series.push_back(plot::histogram_series(plot::bin_samples(v[s], bin_count(all.size()), range), g.settings[s]));
+        p.series.push_back(outline_series(plot::bin_samples(v[s], bin_count(all.size()), range), g.settings[s], s, log_x));
     p.lines = lines;
     f.panels.push_back(p);
     plot::save_png(f, path);
@@ -255,7 +278,7 @@ void plot_closest(const std::vector<CaseRow>& rows, const Groups& g, const std::
     h.y_label = "cases";
     const auto range = value_range(all);
     for (std::size_t s = 0; s < g.settings.size(); ++s)
-        h.series.push_back(plot::histogram_series(plot::bin_samples(per[s], bin_count(all.size()), range), g.settings[s]));
+        h.series.push_back(outline_series(plot::bin_samples(per[s], bin_count(all.size()), range), g.settings[s], s, false));
     h.lines.push_back({0.0, false, "data centre", std::nullopt, true});
     f.panels.push_back(h);
     plot::save_png(f, path);
@@ -276,11 +299,11 @@ std::string write_campaign_report(const std::vector<CaseRow>& rows, const Campai
     std::set<long long> radii;
     for (const CaseRow& r : rows)
         if (radii.insert(std::llround(r.field_radius_arcmin * 1e3)).second && r.field_radius_arcmin > 0)
-            radius_lines.push_back({std::log10(r.field_radius_arcmin), false, "field radius " + table_number("%g", r.field_radius_arcmin) + "′",
-                                    plot::palette(1), true});
+            radius_lines.push_back({r.field_radius_arcmin, false, "field radius " + table_number("%g", r.field_radius_arcmin) + "′",
+                                    std::nullopt, true});  // dark grey: no setting's colour
     plot_histograms(rows, g, title, at("separations.png"), "distribution of the separation between prediction and truth at the search epoch",
-                    "log10 of the separation (arcmin)", [](const CaseRow& r) { return r.separation_arcmin > 0 ? std::log10(r.separation_arcmin) : NAN; },
-                    std::nullopt, radius_lines);
+                    "separation (arcmin, log scale; bins of equal width in log)", [](const CaseRow& r) { return r.separation_arcmin; },
+                    std::nullopt, radius_lines, true);
     plot_histograms(rows, g, title, at("luck_fraction.png"), "distribution of the luck fraction (share of the luck window inside the field)",
                     "luck fraction", [](const CaseRow& r) { return r.luck_fraction; }, std::make_pair(0.0, 1.0), {});
     plot_closest(rows, g, title, at("closest_agreement.png"));

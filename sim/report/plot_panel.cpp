@@ -75,7 +75,9 @@ FigureLayout layout_figure(cairo_t* cr, const Figure& f) {
     auto make_x = [&](std::size_t i, double width) {
         const Panel& p = panels[i];
         const DataRange& d = (f.share_x && !p.x_range && shared.have) ? shared : xd[i];
-        return fitted_x_axis(cr, width, [&](int target) { return linear_axis(d.have, d.lo, d.hi, p.x_range, target); });
+        return fitted_x_axis(cr, width, [&](int target) {
+            return p.log_x ? log_axis(d.have, d.lo, d.hi, p.x_range, target) : linear_axis(d.have, d.lo, d.hi, p.x_range, target);
+        });
     };
     double left = 0.0;
     for (std::size_t i = 0; i < panels.size(); ++i) left = std::max(left, left_margin(cr, panels[i], L.panels[i].y));
