@@ -3,6 +3,7 @@
 // width with its footnote only when it applies, and residual plots that mark off-scale points at the edge.
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <filesystem>
 #include <map>
@@ -18,6 +19,7 @@
 #include "sim/fit/known_fit.hpp"
 #include "sim/io/toml_reader.hpp"
 #include "sim/predict/predict.hpp"
+#include "sim/report/plot_internal.hpp"
 #include "sim/report/report.hpp"
 #include "sim/report/text_table.hpp"
 #include "solve_helpers.hpp"
@@ -240,4 +242,17 @@ TEST_CASE("budget table: each source's share of the quadrature sum, the all-on g
     CHECK(share_columns.size() == 1);  // header and a row with a Greek label end in the same column
     CHECK(t.find("All on is 2.40 times the quadrature sum.") != std::string::npos);
     CHECK(t.find("Only 4 runs: a small sample") != std::string::npos);
+}
+
+TEST_CASE("a log axis over less than a decade labels at least three values") {
+    // 40 to 160 arcmin: 2 and 5 per decade alone would label only 50 and 100.
+    const plot::detail::Axis a = plot::detail::log_axis(true, 40.0, 160.0, std::nullopt, 6);
+    CHECK(a.ticks.size() >= 3);
+    CHECK(std::find(a.labels.begin(), a.labels.end(), "50") != a.labels.end());
+    CHECK(std::find(a.labels.begin(), a.labels.end(), "100") != a.labels.end());
+    for (double t : a.ticks) CHECK((t >= a.lo && t <= a.hi));
+    // Over a decade and more, the decades and 2 and 5 as before: no crowding.
+    const plot::detail::Axis b = plot::detail::log_axis(true, 3.0, 90.0, std::nullopt, 6);
+    for (const std::string& l : {"3", "30", "4", "40"}) CHECK(std::find(b.labels.begin(), b.labels.end(), l) == b.labels.end());
+    CHECK(std::find(b.labels.begin(), b.labels.end(), "10") != b.labels.end());
 }

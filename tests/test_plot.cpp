@@ -614,3 +614,22 @@ TEST_CASE("plot: writes are atomic and failures name the path") {
     huge.height = 100000;
     CHECK_THROWS_AS(save_svg(huge, dir + "/z.svg"), std::runtime_error);
 }
+
+TEST_CASE("plot: a span of a single epoch (zero width in data) is still shaded") {
+    Figure f;
+    f.width = 600;
+    Panel p;
+    Series s = make_series("curve", {0.0, 10.0}, {1.0, 2.0});
+    s.color = palette(0);
+    p.series.push_back(s);
+    p.spans.push_back(Span{5.0, 5.0, true, palette(2), "inside", 1.0});  // one epoch inside, fully opaque
+    p.legend = false;
+    f.panels = {p};
+    const std::string path = out_dir() + "/single-span.png";
+    save_png(f, path);
+    const Image img = read_png(path);
+    REQUIRE(img.ok);
+    const Rect area = plot_area(f, 0);
+    // A strip at least 3 px wide (2 whole columns in any sub-pixel position) and the plot's full height (grid lines drawn over it may take a few pixels).
+    CHECK(count_colour(img, to_rgb(palette(2)), 3, area) >= static_cast<long>(1.5 * area.h));
+}
