@@ -206,6 +206,11 @@ TEST_CASE("no command overwrites what an earlier command wrote: solve --out, sco
         CHECK(text.find("<svg") != std::string::npos);
     }
     CHECK(!fs::exists(dir / "luck_own.svg"));  // --svg only where asked
+    // A luck window reaching past the exercise's span says it was cut; one inside the span says nothing.
+    const auto wide = testing::run_cli("score " + d + " --window 5000");
+    CHECK(wide.output.find("years is cut to") != std::string::npos);
+    const auto narrow = testing::run_cli("score " + d + " --window 0.5");
+    CHECK(narrow.output.find("is cut to") == std::string::npos);
     fs::remove_all(dir);
     fs::remove_all(d + "-answer-key");
 }

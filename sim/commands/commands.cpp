@@ -325,6 +325,14 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
     out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
         << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "
         << std::setprecision(3) << sc.closest_arcmin << " arcmin in " << std::setprecision(2) << sc.closest_year << "\n";
+    // Say so when the window was cut: the curve only covers the years the exercise's span (or track) reaches.
+    if (!sc.luck.empty()) {
+        const double first = sc.luck.front().year, last = sc.luck.back().year, half_step = 0.5 / 24.0;
+        const bool cut_before = first > sc.epoch_year - args.window_years + half_step, cut_after = last < sc.epoch_year + args.window_years - half_step;
+        if (cut_before || cut_after)
+            out << "  (the window of ±" << std::defaultfloat << args.window_years << std::fixed << " years is cut to " << std::setprecision(2) << first << "–" << last
+                << ": the exercise's span ends there)\n";
+    }
     out << std::defaultfloat << "Wrote " << args.dir << "/" << stem << ".csv and " << args.dir << "/" << stem << ".png\n";
     return 0;
 }
