@@ -144,7 +144,7 @@ Command add_budget(CLI::App& app) {
     c->add_option("scenario", bud.scenario, "scenario file (TOML)")->required();
     c->add_option("--runs", bud.runs, "systems drawn (seeds)")->capture_default_str();
     c->add_option("--seed", bud.seed, "seed of the runs' seeds")->capture_default_str();
-    c->add_option("--out", bud.out_dir, "folder for budget.csv, budget_runs.csv, budget.png")->capture_default_str();
+    c->add_option("--out", bud.out_dir, "folder for budget.csv, budget_runs.csv, budget.png (made if missing)")->required();
     c->add_option("--threads", bud.threads, "solves at once (0: all cores; results do not depend on it)")->capture_default_str();
     c->add_option("--ecc-sigma", bud.ecc_sigma, "base prior sigma on e cos(varpi), e sin(varpi) (default 0.5: broad)");
     c->add_option("--tilt-sigma", bud.tilt_sigma_deg, "base prior sigma (deg) on the tilt components (default 30: broad)");

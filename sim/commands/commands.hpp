@@ -95,7 +95,7 @@ struct BudgetArgs {
     std::string scenario;
     int runs = 10;
     std::uint64_t seed = 1;
-    std::string out_dir = ".";
+    std::string out_dir;  // required: the budget never writes into the current folder unasked
     unsigned threads = 0;
     std::optional<double> ecc_sigma, tilt_sigma_deg;
     int starts = 4;
