@@ -136,8 +136,12 @@ TEST_CASE("budget: lines the scenario has, what-ifs, and their bad values") {
     r = testing::run_cli("budget " + testing::source_path("scenarios/quick.toml") + " --era-sigma survey --out " + dir.string());
     CHECK(r.status == 2);
     CHECK(r.output.find("LABEL=FACTOR") != std::string::npos);
-    r = testing::run_cli("budget " + testing::source_path("scenarios/no-such.toml"));
+    r = testing::run_cli("budget " + testing::source_path("scenarios/no-such.toml") + " --out " + dir.string());
     CHECK(r.status == 2);
+    // Without --out the budget refuses to start rather than write into the current folder.
+    r = testing::run_cli("budget " + testing::source_path("scenarios/quick.toml"));
+    CHECK(r.status == 2);
+    CHECK(r.output.find("--out is required") != std::string::npos);
 }
 
 TEST_CASE("budget: observation draws with and without noise hold the same records at the same times") {

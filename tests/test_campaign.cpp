@@ -1,5 +1,5 @@
 // Campaigns in process: the spec's bad input (named by file, line and field, refused before any work), case
-// numbering and shards, stable system seeds, the table's rows and the bootstrap interval. The runs themselves (threads, shards, kill and resume, merge) are
+// numbering and shards, stable system seeds, the table's rows and the Wilson interval. The runs themselves (threads, shards, kill and resume, merge) are
 // exercised through the CLI in tests/campaign_runs.sh.
 #include <doctest/doctest.h>
 
@@ -9,6 +9,7 @@
 #include <set>
 #include <sstream>
 
+#include "sim/io/fileio.hpp"
 #include "sim/campaign/campaign.hpp"
 #include "sim/base/errors.hpp"
 #include "sim/exercise/exercise.hpp"
@@ -254,8 +255,9 @@ TEST_CASE("campaign rows: a row survives formatting and parsing, and a damaged r
     failed.mahalanobis.reset();
     failed.hit = false;
     const std::string fline = format_case_row(failed);
-    CHECK(std::count(fline.begin(), fline.end(), ',') == 28);
+    CHECK(split_csv_line(fline.substr(0, fline.size() - 1)).size() == 29);  // the note's comma is quoted, not a separator
     const CaseRow fback = parse_case_row(fline.substr(0, fline.size() - 1), "cases.csv", 6);
+    CHECK(fback.note == failed.note);
     CHECK_FALSE(fback.ok);
     CHECK_FALSE(fback.hit);
 
@@ -268,23 +270,25 @@ TEST_CASE("campaign rows: a row survives formatting and parsing, and a damaged r
     }
 }
 
-TEST_CASE("bootstrap interval of a success rate") {
-    std::vector<bool> all(50, true);
-    const RateInterval a = bootstrap_rate(all, 2000, 0.95, 1);
-    CHECK(a.rate == 1.0);
-    CHECK(a.lo == 1.0);
-    CHECK(a.hi == 1.0);
-    // 50 hits of 100: the normal approximation gives 0.5 +- 1.96 * 0.05 (common practice); the percentile
-    // bootstrap lands within a resampling error of it.
+TEST_CASE("Wilson interval of a success rate") {
+    // Reference: scipy.stats.binomtest(k, n).proportion_ci(method="wilson") from Debian's python3-scipy 1.10.
+    const RateInterval all = wilson_rate(5, 5, 0.95);
+    CHECK(all.rate == 1.0);
+    CHECK(all.hi == 1.0);
+    CHECK(all.lo == doctest::Approx(0.5655175352168251).epsilon(1e-12));  // 5 of 5 is not [1, 1]
+    const RateInterval none = wilson_rate(0, 10, 0.95);
+    CHECK(none.lo == 0.0);
+    CHECK(none.hi == doctest::Approx(0.27753279986288926).epsilon(1e-12));
+    const RateInterval some = wilson_rate(7, 20, 0.95);
+    CHECK(some.lo == doctest::Approx(0.1811918241010821).epsilon(1e-12));
+    CHECK(some.hi == doctest::Approx(0.5671457233147637).epsilon(1e-12));
     std::vector<bool> half(100, false);
     for (std::size_t i = 0; i < half.size(); i += 2) half[i] = true;
-    const RateInterval h = bootstrap_rate(half, 4000, 0.95, 2);
+    const RateInterval h = wilson_rate(half, 0.95);
     CHECK(h.rate == 0.5);
-    CHECK(h.lo == doctest::Approx(0.402).epsilon(0.06));
-    CHECK(h.hi == doctest::Approx(0.598).epsilon(0.04));
-    const RateInterval again = bootstrap_rate(half, 4000, 0.95, 2);
-    CHECK(again.lo == h.lo);
-    CHECK(again.hi == h.hi);
+    CHECK(h.lo == doctest::Approx(0.4038315303659956).epsilon(1e-12));
+    CHECK(h.hi == doctest::Approx(0.5961684696340044).epsilon(1e-12));
+    CHECK(std::isnan(wilson_rate(0, 0, 0.95).rate));
 }
 
 TEST_CASE("campaign rows with the search: found, night and hours survive; inconsistent cells are named") {

@@ -614,3 +614,52 @@ TEST_CASE("plot: writes are atomic and failures name the path") {
     huge.height = 100000;
     CHECK_THROWS_AS(save_svg(huge, dir + "/z.svg"), std::runtime_error);
 }
+
+TEST_CASE("plot: a span of a single epoch (zero width in data) is still shaded") {
+    Figure f;
+    f.width = 600;
+    Panel p;
+    Series s = make_series("curve", {0.0, 10.0}, {1.0, 2.0});
+    s.color = palette(0);
+    p.series.push_back(s);
+    p.spans.push_back(Span{5.0, 5.0, true, palette(2), "inside", 1.0});  // one epoch inside, fully opaque
+    p.legend = false;
+    f.panels = {p};
+    const std::string path = out_dir() + "/single-span.png";
+    save_png(f, path);
+    const Image img = read_png(path);
+    REQUIRE(img.ok);
+    const Rect area = plot_area(f, 0);
+    // A strip at least 3 px wide (2 whole columns in any sub-pixel position) and the plot's full height (grid lines drawn over it may take a few pixels).
+    CHECK(count_colour(img, to_rgb(palette(2)), 3, area) >= static_cast<long>(1.5 * area.h));
+}
+
+TEST_CASE("plot: a log x axis places 10 a third of the way from 1 to 1000") {
+    Figure f;
+    f.width = 700;
+    Panel p;
+    p.log_x = true;
+    p.x_range = std::make_pair(1.0, 1000.0);
+    Series s = make_series("curve", {1.0, 1000.0}, {0.0, 1.0});
+    s.color = palette(0);
+    p.series.push_back(s);
+    p.lines.push_back({10.0, false, "", palette(2), false});  // a solid vertical line at x = 10
+    p.legend = false;
+    f.panels = {p};
+    const std::string path = out_dir() + "/log-x.png";
+    save_png(f, path);
+    const Image img = read_png(path);
+    REQUIRE(img.ok);
+    const Rect area = plot_area(f, 0);
+    // log10(10) is a third of the way from log10(1) to log10(1000); on a linear axis 10 would sit at 0.9%.
+    const double x_expected = area.x + area.w / 3.0;
+    // Along a row near the top (clear of the curve), the most bluish-green pixel is the line's.
+    const int row = static_cast<int>(area.y + 0.1 * area.h);
+    int best_x = -1, best = -1000;
+    for (int x = static_cast<int>(area.x) + 2; x < static_cast<int>(area.x + area.w) - 2; ++x) {
+        const Rgb c = img.at(x, row);
+        if (c.g - c.r > best) { best = c.g - c.r; best_x = x; }
+    }
+    CHECK(best > 60);
+    CHECK(std::abs(best_x - x_expected) <= 3.0);
+}

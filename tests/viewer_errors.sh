@@ -26,7 +26,7 @@ expect() {
 }
 
 # --version needs no display and prints the version on stdout.
-if out=$(env -u DISPLAY "$view" --version) && [[ "$out" =~ ^wayward-view\ [0-9]+\.[0-9]+\.[0-9]+$ ]]; then
+if out=$(env -u DISPLAY "$view" --version) && [[ "$out" =~ ^wayward-view\ [0-9]+\.[0-9]+\.[0-9]+\ \(assets:\ .+\)$ ]]; then
   echo "ok: --version prints '$out'"
 else
   echo "FAIL: wayward-view --version printed '$out'" >&2; failures=$((failures + 1))
@@ -39,6 +39,15 @@ expect 2 "nonsense not in" -- "$view" "$scenario" --panel nonsense --screenshot 
 expect 2 "expected WxH" -- "$view" "$scenario" --size 12by34 --screenshot "$tmp/d.png"
 expect 2 "frames requires --screenshot" -- "$view" "$scenario" --frames 3
 expect 2 "Could not convert: --seed = many" -- "$view" "$scenario" --seed many
+expect 2 "expected LON,LAT or LON,LAT,YEAR" -- "$view" "$scenario" --prediction 1,2,3,4 --screenshot "$tmp/e.png"
+expect 2 '"north" is not a number' -- "$view" "$scenario" --prediction 10,north --screenshot "$tmp/f.png"
+# The help names the prediction's form, not CLI11's "FLOAT x 2" (it takes two or three numbers).
+help=$(env -u DISPLAY "$view" --help)
+if grep -q -- "--prediction LON,LAT\[,YEAR\]" <<<"$help" && ! grep -q "FLOAT x 2" <<<"$help"; then
+  echo "ok: --help shows --prediction LON,LAT[,YEAR]"
+else
+  echo "FAIL: --help: $(grep -- --prediction <<<"$help")" >&2; failures=$((failures + 1))
+fi
 
 if [ "$failures" -ne 0 ]; then echo "$failures check(s) failed" >&2; exit 1; fi
 echo "all viewer error checks passed"

@@ -158,6 +158,9 @@ private:
     bool canvas_drag_ = false;
     std::vector<double> frame_ms_;
     sf::Clock wait_clock_;
+    // The sidebar's last frame: the height its content needs, the window's height and how far it can scroll
+    // (reported in screenshot mode, so a test can check that what does not fit scrolls).
+    float sidebar_content_h_ = 0.0f, sidebar_window_h_ = 0.0f, sidebar_scroll_max_ = 0.0f;
 
     bool headless() const { return !opt_.screenshot.empty(); }
     bool refused_ = false;  // a headless reveal was refused
@@ -379,6 +382,9 @@ private:
         ImGui::TextDisabled("Space play/pause \u00b7 \u2190/\u2192 step \u00b7 1\u2013%zu panels", panels_.size());
         const ImGuiIO& io = ImGui::GetIO();
         if (!headless()) ImGui::TextDisabled("%.1f ms per frame", 1000.0f / std::max(io.Framerate, 1e-3f));
+        sidebar_content_h_ = ImGui::GetCursorPosY();
+        sidebar_window_h_ = ImGui::GetWindowHeight();
+        sidebar_scroll_max_ = ImGui::GetScrollMaxY();
         ImGui::End();
     }
 
@@ -541,6 +547,8 @@ private:
             std::printf("wayward-view: %s, panel %s, %ux%u, %zu stars: %d frames, after the first mean %.2f ms, median %.2f ms per frame\n",
                         opt_.screenshot.c_str(), panel().name(), opt_.width, opt_.height, model_ ? model_->stars.size() : 0,
                         frame, mean, median(steady));
+            std::printf("wayward-view: sidebar content %.0f px, window %.0f px, scrolls %.0f px\n", sidebar_content_h_, sidebar_window_h_,
+                        sidebar_scroll_max_);
         }
         return status;
     }

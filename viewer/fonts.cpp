@@ -9,6 +9,14 @@ namespace wayward::viewer {
 
 std::string asset_dir() {
     if (const char* env = std::getenv("WAYWARD_ASSET_DIR"); env && *env) return env;
+    // An installed viewer (cmake --install) finds its font beside it: BIN/../share/wayward; a viewer run from the
+    // build tree falls back to the source tree's assets/.
+    std::error_code ec;
+    const std::filesystem::path exe = std::filesystem::read_symlink("/proc/self/exe", ec);
+    if (!ec) {
+        const std::filesystem::path installed = exe.parent_path().parent_path() / WAYWARD_INSTALL_ASSET_SUBDIR;
+        if (std::filesystem::is_regular_file(installed / "fonts" / "DejaVuSans.ttf", ec)) return installed.string();
+    }
     return WAYWARD_ASSET_DIR;
 }
 

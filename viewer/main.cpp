@@ -7,6 +7,7 @@
 #include <CLI/CLI.hpp>
 
 #include "viewer/app.hpp"
+#include "viewer/fonts.hpp"
 #include "viewer/panels.hpp"
 
 int main(int argc, char** argv) {
@@ -14,7 +15,7 @@ int main(int argc, char** argv) {
     AppOptions opt;
     CLI::App app{"wayward-view: rehearse on an exercise folder (trainee mode), or watch a scenario's invented system "
                  "from above and from the observer planet's sky (author mode)"};
-    app.set_version_flag("--version", std::string("wayward-view ") + WAYWARD_VERSION);
+    app.set_version_flag("--version", std::string("wayward-view ") + WAYWARD_VERSION + " (assets: " + asset_dir() + ")");
     std::string size;
     app.add_option("input", opt.input,
                    "exercise folder (trainee mode: the hidden body stays sealed until revealed) or scenario file "
@@ -32,9 +33,11 @@ int main(int argc, char** argv) {
     app.add_option("--year", opt.year, "starting time as a decimal year (default: epoch 0, the start of the span)");
     app.add_option("--stars", opt.stars, "star-field size (default: the count law down to magnitude 7)")
         ->check(CLI::Range(0L, 2'000'000L));
-    app.add_option("--prediction", opt.prediction,
+    // One text parsed below, so the help shows the form LON,LAT[,YEAR] (a list option would print "FLOAT x 2").
+    std::string prediction;
+    app.add_option("--prediction", prediction,
                    "trainee mode: your prediction as LON,LAT[,YEAR] (degrees; year default: the search epoch)")
-        ->delimiter(',')->expected(2, 3);
+        ->type_name("LON,LAT[,YEAR]");
     app.add_flag("--run-solve", opt.run_solve, "trainee mode: start the solver with the default priors at once");
     app.add_option("--minimum", opt.minimum, "trainee mode: the local minimum to show (1 = best)")
         ->check(CLI::Range(1, 1000))->capture_default_str();
@@ -46,6 +49,31 @@ int main(int argc, char** argv) {
     } catch (const CLI::ParseError& e) {
         const int rc = app.exit(e);
         return rc == 0 ? 0 : 2;
+    }
+    if (!prediction.empty()) {
+        std::size_t start = 0;
+        for (;;) {
+            const std::size_t comma = prediction.find(',', start);
+            const std::string cell = prediction.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+            std::size_t used = 0;
+            double v = 0.0;
+            try {
+                v = std::stod(cell, &used);
+            } catch (const std::exception&) {
+                used = std::string::npos;
+            }
+            if (used != cell.size() || cell.empty()) {
+                std::cerr << "--prediction: \"" << cell << "\" is not a number (expected LON,LAT[,YEAR])\n";
+                return 2;
+            }
+            opt.prediction.push_back(v);
+            if (comma == std::string::npos) break;
+            start = comma + 1;
+        }
+        if (opt.prediction.size() < 2 || opt.prediction.size() > 3) {
+            std::cerr << "--prediction: expected LON,LAT or LON,LAT,YEAR\n";
+            return 2;
+        }
     }
     if (!size.empty()) {
         const auto x = size.find('x');

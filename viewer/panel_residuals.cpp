@@ -142,7 +142,7 @@ public:
     void sidebar(ViewerControls&, ViewerModel& m) override {
         if (author_note(m)) return;
         Analysis& a = *m.analysis;
-        ImGui::TextWrapped("O\u2212C of the known planets alone (no hidden body), from sim's known-bodies fit.");
+        ImGui::TextWrapped("O\u2212C of the known planets alone (no hidden body): what the known planets cannot explain.");
         if (a.fit_job.running()) {
             progress_bar(-1.0, "fitting");
             ImGui::TextDisabled("%s", a.fit_stage.c_str());

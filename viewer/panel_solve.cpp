@@ -23,6 +23,31 @@ namespace wayward::viewer {
 
 namespace {
 
+// Dimmed text wrapped at spaces only: ImGui's own wrapping also breaks after '.', which splits numbers ("0." /
+// "100") and paths; here a word, a number or a path stays whole on its line.
+void text_dim_wrapped_at_spaces(const std::string& text) {
+    const float width = ImGui::GetContentRegionAvail().x;
+    std::string line, word;
+    auto flush = [&] {
+        if (!line.empty()) ImGui::TextDisabled("%s", line.c_str());
+        line.clear();
+    };
+    std::size_t i = 0;
+    while (i <= text.size()) {
+        const std::size_t sp = std::min(text.find(' ', i), text.size());
+        word = text.substr(i, sp - i);
+        const std::string candidate = line.empty() ? word : line + " " + word;
+        if (!line.empty() && ImGui::CalcTextSize(candidate.c_str()).x > width) {
+            flush();
+            line = word;
+        } else {
+            line = candidate;
+        }
+        i = sp + 1;
+    }
+    flush();
+}
+
 const char* distance_names[] = {"free", "fixed", "Gaussian", "spacing rule"};
 
 std::string fmt(const char* f, double v) {
@@ -100,9 +125,7 @@ public:
         f.starts = std::clamp(f.starts, 1, 32);
         f.samples = std::clamp(f.samples, 10, 100000);
         ImGui::EndDisabled();
-        ImGui::PushTextWrapPos(0.0f);
-        ImGui::TextDisabled("= %s", solve_command(f, "DIR", m.search_epoch_year()).c_str());
-        ImGui::PopTextWrapPos();
+        text_dim_wrapped_at_spaces("The same solve from the command line: " + solve_command(f, a.exercise().dir, m.search_epoch_year()));
     }
 
     // Run or cancel, the run's progress, and why a run or solution.toml was refused.
@@ -132,9 +155,7 @@ public:
         const Solution& s = *a.solution;
         ImGui::Separator();
         ImGui::TextUnformatted(a.source == SolutionSource::file ? "Solution from solution.toml" : "Solution from this run");
-        ImGui::PushTextWrapPos(0.0f);
-        ImGui::TextDisabled("%s", s.priors.c_str());
-        ImGui::PopTextWrapPos();
+        text_dim_wrapped_at_spaces(s.priors);
         if (a.source == SolutionSource::run) {
             if (a.solution_saved) {
                 ImGui::TextDisabled("saved to solution.toml");
@@ -276,7 +297,8 @@ private:
         for (const auto& l : lines) w = std::max(w, ctx.fonts.pick(ts)->CalcTextSizeA(ts, 1e9f, 0, l.c_str()).x);
         // Bottom right, clear of the latitude labels on the left edge.
         const float bottom = sky.top + sky.height - pad - ts * 1.5f;  // above the longitude labels
-        const ImVec2 a(sky.left + sky.width - pad - w - 10, bottom - ts * 1.35f * static_cast<float>(lines.size() + 1) - 4.0f);
+        const std::size_t key_rows = exact ? 2 : 1;  // the symbol key: one row, and one more naming the ellipse and circle
+        const ImVec2 a(sky.left + sky.width - pad - w - 10, bottom - ts * 1.35f * static_cast<float>(lines.size() + key_rows) - 4.0f);
         list.AddRectFilled(ImVec2(a.x - 6, a.y - 6), ImVec2(a.x + w + 10, bottom + 2), IM_COL32(10, 13, 22, 215), 6.0f);
         float y = a.y;
         for (const auto& l : lines) {
@@ -293,6 +315,20 @@ private:
             draw_marker(list, ImVec2(x + r, y + ts * 0.55f), Marker::cross, r + 1, im_color(palette::prediction), true, 2.0f);
             draw_text(list, ctx.fonts, ts, ImVec2(x + 2 * r + 6, y), im_color(palette::text), "yours");
         }
+        if (!exact) return;
+        // The second row names the two outlines around the prediction: the 1σ ellipse and the 90% circle.
+        y += ts * 1.35f;
+        x = a.x;
+        const ImVec2 ec(x + ts * 0.7f, y + ts * 0.55f);
+        list.PathClear();
+        for (int k = 0; k < 24; ++k) {
+            const float t = 6.2831853f * static_cast<float>(k) / 24.0f;
+            list.PathLineTo(ImVec2(ec.x + ts * 0.7f * std::cos(t), ec.y + ts * 0.35f * std::sin(t)));
+        }
+        list.PathStroke(im_color(palette::solution), ImDrawFlags_Closed, 1.5f);
+        x += ts * 1.4f + 6 + draw_text(list, ctx.fonts, ts, ImVec2(x + ts * 1.4f + 6, y), im_color(palette::text), "1\u03c3 ellipse").x + 16;
+        list.AddCircle(ImVec2(x + ts * 0.5f, y + ts * 0.55f), ts * 0.5f, im_color(palette::solution), 24, 1.0f);
+        draw_text(list, ctx.fonts, ts, ImVec2(x + ts + 6, y), im_color(palette::text), "90% of samples (circle)");
     }
 
     void draw_minima(ImDrawList& list, const sf::FloatRect& area, const ViewerControls& c, const Solution& s, const DrawContext& ctx) {

@@ -7,7 +7,7 @@
 // with a single write() call, so a killed run leaves only whole rows and resumes where it stopped; a manifest
 // (DIR/manifest.toml) names the campaign (SHA-256 of the spec and its scenario files) and the shard. Sharding
 // splits the units, `merge` joins the shards. The report (sim/report/campaign_report): summary.txt and PNG plots (success rate against epoch
-// with bootstrap bands, separations, luck fractions, epoch of closest agreement).
+// with Wilson bands, separations, luck fractions, epoch of closest agreement).
 //
 // Determinism: a system's seed comes from (campaign seed, scenario name, seed number) through derive_seed, and is
 // the seed that `wayward new` takes to make the same exercise; the covariance samples' seed from (system seed,
@@ -178,10 +178,15 @@ MergedCampaign merge_campaigns(const std::vector<std::string>& dirs, const std::
 // (bytes, 0: none).
 std::uint64_t limit_memory(double gigabytes, unsigned threads);
 
-// Percentile bootstrap interval of a success rate (resampling the cases), deterministic for a given seed.
+// Wilson score interval of a success rate (Wilson 1927, JASA 22:209; recommended by Agresti & Coull 1998,
+// Am. Stat. 52:119): unlike a bootstrap it widens at 0 and 1 (5 of 5 gives [0.57, 1] at 95%, not [1, 1]).
+// NaN for no cases.
 struct RateInterval {
     double rate = 0.0, lo = 0.0, hi = 0.0;
 };
-RateInterval bootstrap_rate(const std::vector<bool>& hits, int resamples, double level, std::uint64_t seed);
+RateInterval wilson_rate(std::size_t successes, std::size_t cases, double level);
+RateInterval wilson_rate(const std::vector<bool>& hits, double level);
+// Below this many cases a rate's interval is wide whatever its method; reports say so beside it.
+inline constexpr std::size_t small_sample_cases = 20;
 
 }  // namespace wayward

@@ -92,7 +92,7 @@ std::string manifest_text(const CampaignManifest& m) {
     root.insert("campaign", c);
     std::ostringstream ss;
     ss << "# Wayward campaign folder: the campaign and the shard that cases.csv belongs to. Written by wayward; do not edit.\n"
-       << root << "\n";
+       << detail::toml_text_shortest(root) << "\n";
     return ss.str();
 }
 

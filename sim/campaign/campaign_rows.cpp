@@ -55,10 +55,13 @@ const std::string& campaign_csv_header() {
 namespace {
 constexpr std::size_t kColumns = 29;
 
-std::string clean_note(std::string s) {
-    for (char& c : s)
-        if (c == ',' || c == '"' || c == '\n' || c == '\r') c = ';';
-    if (s.size() > 200) s.resize(200);
+// A failure's note, cut to 200 bytes (not inside a UTF-8 sequence) so a row stays short; csv_cell quotes it.
+std::string short_note(std::string s) {
+    if (s.size() > 200) {
+        std::size_t n = 200;
+        while (n > 0 && (static_cast<unsigned char>(s[n]) & 0xC0) == 0x80) --n;
+        s.resize(n);
+    }
     return s;
 }
 }  // namespace
@@ -68,9 +71,9 @@ std::string format_case_row(const CaseRow& r) {
     s.reserve(320);
     auto add = [&](const std::string& v) { s += v; s += ','; };
     add(std::to_string(r.index));
-    add(r.scenario);
+    add(csv_cell(r.scenario));
     add(std::to_string(r.seed));
-    add(r.settings);
+    add(csv_cell(r.settings));
     add(cell_or_empty("%.4f", r.epoch_year));
     add(cell_or_empty("%.4f", r.epoch_offset_years));
     add(r.ok ? "ok" : "failed");
@@ -94,14 +97,14 @@ std::string format_case_row(const CaseRow& r) {
     add(r.searched ? (r.search_found ? "1" : "0") : "");
     add(r.searched && r.search_found ? std::to_string(r.search_night) : "");
     add(r.searched ? cell_or_empty("%.2f", r.search_hours) : "");
-    add(clean_note(r.note));
+    add(csv_cell(short_note(r.note)));
     s += cell_or_empty("%.3f", r.unit_seconds);
     s += '\n';
     return s;
 }
 
 CaseRow parse_case_row(const std::string& line, const std::string& file, long n) {
-    const std::vector<std::string> c = split_csv_line(line);
+    const std::vector<std::string> c = split_csv_line(line, file, n);
     if (c.size() != kColumns)
         throw InputError(file, n, "", "a damaged row: " + std::to_string(c.size()) + " cells where " + std::to_string(kColumns) +
                                           " belong (delete the line to have that case run again)");

@@ -1,35 +1,33 @@
-// Statistics of campaign rows: the bootstrap interval of a success rate. See campaign.hpp.
+// Statistics of campaign rows: the Wilson score interval of a success rate (Wilson 1927). See campaign.hpp.
 #include "sim/campaign/campaign.hpp"
 
 #include <algorithm>
 #include <cmath>
 
-#include <boost/random/uniform_int_distribution.hpp>
-
-#include "sim/base/random.hpp"
-#include "sim/base/statistics.hpp"
+#include <boost/math/distributions/normal.hpp>
 
 namespace wayward {
 
-RateInterval bootstrap_rate(const std::vector<bool>& hits, int resamples, double level, std::uint64_t seed) {
+RateInterval wilson_rate(std::size_t successes, std::size_t cases, double level) {
     RateInterval ri;
-    const std::size_t n = hits.size();
-    if (n == 0) {
+    if (cases == 0 || successes > cases || !(level > 0.0 && level < 1.0)) {
         ri.rate = ri.lo = ri.hi = NAN;
         return ri;
     }
-    const auto count = static_cast<double>(std::count(hits.begin(), hits.end(), true));
-    ri.rate = count / static_cast<double>(n);
-    Rng rng = make_rng(seed, "campaign-bootstrap");
-    boost::random::uniform_int_distribution<std::size_t> pick(0, n - 1);
-    std::vector<double> rates(static_cast<std::size_t>(std::max(resamples, 1)));
-    for (double& r : rates) {
-        std::size_t h = 0;
-        for (std::size_t i = 0; i < n; ++i) h += hits[pick(rng)] ? 1 : 0;
-        r = static_cast<double>(h) / static_cast<double>(n);
-    }
-    ri.lo = quantile(rates, 0.5 * (1.0 - level));
-    ri.hi = quantile(rates, 1.0 - 0.5 * (1.0 - level));
+    const double n = static_cast<double>(cases);
+    const double p = static_cast<double>(successes) / n;
+    const double z = boost::math::quantile(boost::math::normal(), 0.5 + 0.5 * level);
+    const double z2n = z * z / n;
+    const double centre = (p + 0.5 * z2n) / (1.0 + z2n);
+    const double half = z / (1.0 + z2n) * std::sqrt(p * (1.0 - p) / n + 0.25 * z2n / n);
+    ri.rate = p;
+    // At 0 and n successes the bounds are exactly 0 and 1; clamping keeps rounding from leaving [0, 1].
+    ri.lo = successes == 0 ? 0.0 : std::clamp(centre - half, 0.0, 1.0);
+    ri.hi = successes == cases ? 1.0 : std::clamp(centre + half, 0.0, 1.0);
     return ri;
+}
+
+RateInterval wilson_rate(const std::vector<bool>& hits, double level) {
+    return wilson_rate(static_cast<std::size_t>(std::count(hits.begin(), hits.end(), true)), hits.size(), level);
 }
 }  // namespace wayward

@@ -11,6 +11,7 @@
 #include "sim/commands/commands.hpp"
 #include "sim/commands/search_command.hpp"
 #include "sim/base/errors.hpp"
+#include "sim/report/plot.hpp"
 
 namespace {
 
@@ -28,7 +29,7 @@ Command add_ephemeris(CLI::App& app) {
     EphemerisArgs& eph = *args;
     auto* c = app.add_subcommand("ephemeris", "print barycentric states and apparent positions of every body (CSV)");
     c->add_option("scenario", eph.scenario, "scenario file (TOML)")->required();
-    c->add_option("--at", eph.days, "days after epoch 0 (comma-separated)")->delimiter(',')->required();
+    c->add_option("--at", eph.at, "times, comma-separated: days after epoch 0 (365.25 or 365.25d), years (1955.25yr) or dates (1955-03-21)")->delimiter(',')->required();
     c->add_option("--seed", eph.seed, "seed for scenarios that draw their values")->capture_default_str();
     c->add_option("--method", eph.method, "integration method (rkf78, dopri5, bulirsch-stoer)")->capture_default_str();
     return {c, [args] { return run_ephemeris(*args, std::cout); }};
@@ -76,6 +77,7 @@ Command add_solve(CLI::App& app) {
     c->add_flag("--quiet", sv.quiet, "no progress output");
     c->add_flag("--neglect-light-time", sv.neglect_light_time, "leave light time out of the model");
     c->add_flag("--point-anyway", sv.point_anyway, "write the best solution's pointing even when the record does not demand a hidden body");
+    c->add_option("--out", sv.out_file, "solution file to write (default EXERCISE/solution.toml)");
     return {c, [args] { return run_solve(*args, std::cout, std::cerr); }};
 }
 
@@ -143,7 +145,7 @@ Command add_budget(CLI::App& app) {
     c->add_option("scenario", bud.scenario, "scenario file (TOML)")->required();
     c->add_option("--runs", bud.runs, "systems drawn (seeds)")->capture_default_str();
     c->add_option("--seed", bud.seed, "seed of the runs' seeds")->capture_default_str();
-    c->add_option("--out", bud.out_dir, "folder for budget.csv, budget_runs.csv, budget.png")->capture_default_str();
+    c->add_option("--out", bud.out_dir, "folder for budget.csv, budget_runs.csv, budget.png (made if missing)")->required();
     c->add_option("--threads", bud.threads, "solves at once (0: all cores; results do not depend on it)")->capture_default_str();
     c->add_option("--ecc-sigma", bud.ecc_sigma, "base prior sigma on e cos(varpi), e sin(varpi) (default 0.5: broad)");
     c->add_option("--tilt-sigma", bud.tilt_sigma_deg, "base prior sigma (deg) on the tilt components (default 30: broad)");
@@ -168,6 +170,11 @@ int main(int argc, char** argv) {
     app.set_version_flag("--version", std::string("wayward ") + WAYWARD_VERSION);
     app.require_subcommand(1);
     const std::vector<Command> commands = {add_ephemeris(app), add_new(app), add_residuals(app), add_solve(app), add_score(app), add_search(app), add_campaign(app), add_merge(app), add_budget(app)};
+    // Every command that draws a figure takes --svg: each PNG gets an SVG copy beside it.
+    bool svg = false;
+    for (const Command& c : commands)
+        if (const std::string n = c.app->get_name(); n == "residuals" || n == "score" || n == "search" || n == "campaign" || n == "merge" || n == "budget")
+            c.app->add_flag("--svg", svg, "also write each figure as SVG (vector graphics) beside its PNG, same name");
 
     try {
         app.parse(argc, argv);
@@ -182,6 +189,7 @@ int main(int argc, char** argv) {
         const int rc = app.exit(e);
         return rc == 0 ? 0 : 2;
     }
+    plot::set_svg_copies(svg);
     try {
         for (const Command& c : commands)
             if (c.app->parsed()) return c.run();

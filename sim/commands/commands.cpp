@@ -3,6 +3,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
+#include <cstdlib>
 #include <filesystem>
 #include <iomanip>
 #include <limits>
@@ -13,6 +15,7 @@
 #include "sim/exercise/exercise.hpp"
 #include "sim/truth/exercise_writer.hpp"
 #include "sim/io/fileio.hpp"
+#include "sim/report/text_table.hpp"
 #include "sim/fit/known_fit.hpp"
 #include "sim/report/luck_report.hpp"
 #include "sim/report/report.hpp"
@@ -22,15 +25,52 @@
 
 namespace wayward {
 
+namespace {
+// Julian Day of a Gregorian calendar date at 0 h: Meeus, Astronomical Algorithms (2nd ed.), chapter 7, eq. 7.1.
+// Hand-written because the library does not link ERFA (only the viewer and the tests do) and this is three lines.
+double gregorian_jd(int year, int month, int day) {
+    if (month <= 2) {
+        year -= 1;
+        month += 12;
+    }
+    const int a = year / 100, b = 2 - a + a / 4;
+    return std::floor(365.25 * (year + 4716)) + std::floor(30.6001 * (month + 1)) + day + b - 1524.5;
+}
+
+bool whole_number(const std::string& s, double& v) {
+    char* end = nullptr;
+    v = std::strtod(s.c_str(), &end);
+    return !s.empty() && end == s.c_str() + s.size() && std::isfinite(v);
+}
+}  // namespace
+
+double days_from_time_text(const std::string& text, double epoch0_year, const std::string& flag) {
+    double v = 0.0;
+    if (whole_number(text, v)) return v;
+    if (text.size() > 1 && text.back() == 'd' && whole_number(text.substr(0, text.size() - 1), v)) return v;
+    if (text.size() > 2 && text.compare(text.size() - 2, 2, "yr") == 0 && whole_number(text.substr(0, text.size() - 2), v))
+        return days_from_year(epoch0_year, v);
+    int y = 0, m = 0, d = 0;
+    char tail = 0;
+    if (std::sscanf(text.c_str(), "%d-%d-%d%c", &y, &m, &d, &tail) == 3 && m >= 1 && m <= 12 && d >= 1 && d <= 31) {
+        // The program's years are Julian epochs (2000.0 is JD 2451545.0, a year 365.25 days).
+        const double julian_epoch = 2000.0 + (gregorian_jd(y, m, d) - 2451545.0) / julian_year_days;
+        return days_from_year(epoch0_year, julian_epoch);
+    }
+    throw InputError("", 0, flag, "\"" + text + "\" is not a time: give days after epoch 0 (365.25 or 365.25d), a year (1955.25yr) or a date (1955-03-21)");
+}
+
 int run_ephemeris(const EphemerisArgs& args, std::ostream& out) {
     const Scenario sc = load_scenario(args.scenario);
+    std::vector<double> days;
+    for (const std::string& a : args.at) days.push_back(days_from_time_text(a, sc.epoch0_year, "--at"));
     IntegratorOptions opt;
     opt.method = args.method;
     bool known_method = false;
     for (const auto& m : integrator_methods()) known_method |= m.name == args.method;
     if (!known_method) throw InputError("", 0, "--method", "unknown integration method '" + args.method + "'");
     const double span = sc.span_years * julian_year_days;
-    for (double t : args.days)
+    for (double t : days)
         if (!(t >= 0.0 && t <= span) || !std::isfinite(t))
             throw InputError("", 0, "--at", "time " + std::to_string(t) + " d is outside the scenario's span [0, " +
                                                 std::to_string(span) + "] d");
@@ -42,11 +82,11 @@ int run_ephemeris(const EphemerisArgs& args, std::ostream& out) {
 
     out << "time_days,year,body,x_au,y_au,z_au,vx_au_per_day,vy_au_per_day,vz_au_per_day,lon_deg,lat_deg,distance_au\n";
     out << std::setprecision(15);
-    for (double t : args.days) {
+    for (double t : days) {
         for (std::size_t i = 0; i < eph.size(); ++i) {
             const StateVector s = eph.state(i, t);
             out << t << ',' << std::setprecision(10) << decimal_year(sc.epoch0_year, t) << std::setprecision(15) << ','
-                << eph.bodies[i].name;
+                << csv_cell(eph.bodies[i].name);
             for (int c = 0; c < 3; ++c) out << ',' << s.position[c];
             for (int c = 0; c < 3; ++c) out << ',' << s.velocity[c];
             if (i == obs) {
@@ -192,7 +232,10 @@ SolveOptions solve_options(const SolveArgs& a) {
 int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_out) {
     const SolveOptions o = solve_options(args);
     const Exercise ex = load_exercise(args.dir);
-    refuse_link_at(args.dir + "/solution.toml");  // before the work, not after
+    const std::string out_file = args.out_file.empty() ? args.dir + "/solution.toml" : args.out_file;
+    if (std::filesystem::is_directory(out_file)) throw InputError(out_file, 0, "--out", "is a folder; give the solution file's name");
+    refuse_link_at(out_file);  // before the work, not after
+    const bool replacing = std::filesystem::exists(out_file);
     Progress bar(progress_out, args.quiet);
     SolveProgress sp;
     sp.report = [&](const std::string& stage, double f) { bar.update(stage, f); };
@@ -211,19 +254,23 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
             << "No pointing written. `wayward solve " << args.dir << " --point-anyway` writes the best solution regardless.\n";
         return 0;
     }
-    const WriterLock lock(args.dir, "DIR", LockWait::wait);  // as in residuals: one writer, leftovers swept
-    remove_stale_temporaries(args.dir);
-    write_file_atomic(args.dir + "/solution.toml", solution_toml(s));
+    // As in residuals: one writer in the folder the solution goes to, leftovers of killed runs swept.
+    const std::string out_dir = std::filesystem::path(out_file).parent_path().empty() ? "." : std::filesystem::path(out_file).parent_path().string();
+    const WriterLock lock(out_dir, "--out", LockWait::wait);
+    remove_stale_temporaries(out_dir);
+    write_file_atomic(out_file, solution_toml(s));
 
     out << std::setprecision(4);
     out << "Hidden body, " << o.describe() << " (" << s.model_runs << " model runs):\n";
     out << "  local minima (best first):\n";
-    out << "    " << std::setw(9) << "a (au)" << std::setw(12) << "λ0 (deg)" << std::setw(12) << "mass" << std::setw(8) << "e"
-        << std::setw(12) << "chi2" << "\n";
+    // Columns padded by displayed width and always two spaces apart, so long numbers never run together.
+    out << "    " << pad("a (au)", 10) << "  " << pad("mean longitude (deg)", 20) << "  " << pad("mass (solar)", 12) << "  " << pad("e", 7)
+        << "  " << pad("chi2", 14) << "\n";
     for (const Minimum& m : s.minima)
-        out << "    " << std::setw(9) << m.orbit.semi_major_axis << std::setw(12) << wrap_two_pi(m.orbit.mean_longitude) / deg
-            << std::setw(12) << m.orbit.mass << std::setw(8) << std::hypot(m.orbit.k, m.orbit.h) << std::setw(12)
-            << std::setprecision(8) << m.chi2 << std::setprecision(4) << (m.converged ? "" : "  (not converged)") << "\n";
+        out << "    " << pad(table_number("%.4g", m.orbit.semi_major_axis), 10) << "  "
+            << pad(table_number("%.4g", wrap_two_pi(m.orbit.mean_longitude) / deg), 20) << "  " << pad(table_number("%.4g", m.orbit.mass), 12)
+            << "  " << pad(table_number("%.4g", std::hypot(m.orbit.k, m.orbit.h)), 7) << "  " << pad(table_number("%.8g", m.chi2), 14)
+            << (m.converged ? "" : "  (not converged)") << "\n";
     out << "  best: a = " << s.best.semi_major_axis << " +- " << s.distance_sigma_au << " au, mass = " << s.best.mass << " +- "
         << s.mass_sigma << " solar masses, e = " << std::hypot(s.best.k, s.best.h) << "\n";
     if (s.spacing_rule_au > 0) out << "  (the spacing rule's next distance is " << s.spacing_rule_au << " au)\n";
@@ -244,13 +291,14 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     out << "Prediction for " << std::setprecision(2) << p.epoch_year << std::setprecision(3) << ": λ = " << p.lon / deg << " deg, β = "
         << p.lat / deg << " deg, distance " << p.distance_au << " au\n";
     out << "  1-sigma ellipse (linear): " << p.semi_major_arcsec / 60 << " x " << p.semi_minor_arcsec / 60
-        << " arcmin, major axis at " << std::setprecision(1) << p.orientation_deg << std::setprecision(3) << " deg from +λ towards +β\n";
+        << " arcmin, major axis at position angle " << std::setprecision(1) << position_angle_deg(p.orientation_deg) << std::setprecision(3)
+        << " deg (from north, +β, through east, +λ)\n";
     out << "  1-sigma ellipse (" << p.samples_used << " samples): " << p.sampled_semi_major_arcsec / 60 << " x "
         << p.sampled_semi_minor_arcsec / 60 << " arcmin; 90% of samples within " << p.radius90_arcsec / 60 << " arcmin\n";
     out << "  search field radius: " << ex.brief.field_radius_deg * 60 << " arcmin\n";
     out << std::defaultfloat;
     if (const std::string c = near_star_caution(near_star(ex.brief, p), p.epoch_year); !c.empty()) out << c << "\n";
-    out << "Wrote " << args.dir << "/solution.toml\n";
+    out << "Wrote " << out_file << (replacing ? " (replacing the earlier solution there; --out FILE keeps both)\n" : "\n");
     return 0;
 }
 
@@ -293,7 +341,15 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
     const AnswerKey key = open_answer_key(ex.brief, key_path);
     const Score sc = score_prediction(ex.brief, key, p, args.window_years);
     // A prediction of the trainee's own gets files of its own, so it never overwrites the solver's luck curve.
-    const std::string stem = (own || !args.prediction_file.empty()) ? "luck_own" : "luck";
+    // A trainee's prediction writes luck_own.*, another solution file luck_NAME.* (after its file name), the
+    // exercise's own solution.toml luck.*: no score overwrites the luck curve of another prediction.
+    std::string stem = (own || !args.prediction_file.empty()) ? "luck_own" : "luck";
+    if (!own && args.prediction_file.empty() && !args.solution.empty()) {
+        const std::filesystem::path sol(args.solution);
+        const bool exercise_own = sol.filename() == "solution.toml" &&
+                                  std::filesystem::weakly_canonical(sol.parent_path()) == std::filesystem::weakly_canonical(args.dir);
+        if (!exercise_own) stem = "luck_" + sol.stem().string();
+    }
     for (const char* ext : {".csv", ".png"}) refuse_link_at(args.dir + "/" + stem + ext);
     const WriterLock lock(args.dir, "DIR", LockWait::wait);  // as in residuals: one writer, leftovers swept
     remove_stale_temporaries(args.dir);
@@ -316,6 +372,14 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
     out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
         << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "
         << std::setprecision(3) << sc.closest_arcmin << " arcmin in " << std::setprecision(2) << sc.closest_year << "\n";
+    // Say so when the window was cut: the curve only covers the years the exercise's span (or track) reaches.
+    if (!sc.luck.empty()) {
+        const double first = sc.luck.front().year, last = sc.luck.back().year, half_step = 0.5 / 24.0;
+        const bool cut_before = first > sc.epoch_year - args.window_years + half_step, cut_after = last < sc.epoch_year + args.window_years - half_step;
+        if (cut_before || cut_after)
+            out << "  (the window of ±" << std::defaultfloat << args.window_years << std::fixed << " years is cut to " << std::setprecision(2) << first << "–" << last
+                << ": the exercise's span ends there)\n";
+    }
     out << std::defaultfloat << "Wrote " << args.dir << "/" << stem << ".csv and " << args.dir << "/" << stem << ".png\n";
     return 0;
 }

@@ -14,11 +14,14 @@ namespace wayward {
 
 struct EphemerisArgs {
     std::string scenario;
-    std::vector<double> days;
+    std::vector<std::string> at;  // each: days after epoch 0 (365.25 or 365.25d), a year (1955.25yr) or a date (1955-03-21)
     std::uint64_t seed = 1;
     std::string method = "rkf78";
 };
 int run_ephemeris(const EphemerisArgs& args, std::ostream& out);
+// One time given on the command line, in days after epoch 0: "D" or "Dd" (days), "Yyr" (a decimal year, as the
+// program's years: Julian epochs), or "YYYY-MM-DD" (a Gregorian date, 0 h). InputError naming `flag` otherwise.
+double days_from_time_text(const std::string& text, double epoch0_year, const std::string& flag);
 
 struct NewArgs {
     std::string scenario;
@@ -52,6 +55,7 @@ struct SolveArgs {
     bool quiet = false;
     bool neglect_light_time = false;
     bool point_anyway = false;    // write the pointing even when the record does not demand a hidden body
+    std::string out_file;  // where solution.toml goes (default: EXERCISE/solution.toml)
 };
 SolveOptions solve_options(const SolveArgs& args);  // parses the priors (InputError on bad values)
 int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress);
@@ -92,7 +96,7 @@ struct BudgetArgs {
     std::string scenario;
     int runs = 10;
     std::uint64_t seed = 1;
-    std::string out_dir = ".";
+    std::string out_dir;  // required: the budget never writes into the current folder unasked
     unsigned threads = 0;
     std::optional<double> ecc_sigma, tilt_sigma_deg;
     int starts = 4;

@@ -66,9 +66,7 @@ toml::table elements_table(const Elements& el) {
 }
 
 std::string toml_text(const toml::table& t) {
-    std::ostringstream ss;
-    ss << t << "\n";
-    return ss.str();
+    return toml_text_shortest(t) + "\n";
 }
 
 // The inverse of elements_table: a bound orbit's elements in degrees, validated.
@@ -140,10 +138,10 @@ std::string format_brief(const Brief& b) {
 std::string format_observations_csv(const std::vector<Observation>& obs, double epoch0_year) {
     std::string s = "time_days,year,target,lon_deg,lat_deg,sigma_lon_arcsec,sigma_lat_arcsec,era\n";
     for (const Observation& o : obs) {
-        s += fmt("%.8f", o.time_days) + "," + fmt("%.6f", decimal_year(epoch0_year, o.time_days)) + "," + o.target + "," +
+        s += fmt("%.8f", o.time_days) + "," + fmt("%.6f", decimal_year(epoch0_year, o.time_days)) + "," + csv_cell(o.target) + "," +
              fmt("%.9f", o.lon_deg) + "," + fmt("%.9f", o.lat_deg) + "," +
              (o.sigma_lon_arcsec ? fmt("%.6g", *o.sigma_lon_arcsec) : "") + "," +
-             (o.sigma_lat_arcsec ? fmt("%.6g", *o.sigma_lat_arcsec) : "") + "," + o.era + "\n";
+             (o.sigma_lat_arcsec ? fmt("%.6g", *o.sigma_lat_arcsec) : "") + "," + csv_cell(o.era) + "\n";
     }
     return s;
 }
@@ -204,7 +202,7 @@ std::vector<Observation> parse_observations_csv(const std::string& text, const s
             continue;
         }
         if (line.empty()) continue;
-        const std::vector<std::string> cells = split_csv_line(line);
+        const std::vector<std::string> cells = split_csv_line(line, file, row);
         if (cells.size() != 8)
             throw InputError(file, row, "row", "expected 8 columns, found " + std::to_string(cells.size()));
         auto number = [&](std::size_t c, bool optional) -> std::optional<double> {

@@ -125,14 +125,54 @@ WriterLock::~WriterLock() {
     if (fd_ >= 0) ::close(fd_);  // closing releases the flock
 }
 
-std::vector<std::string> split_csv_line(const std::string& line) {
+std::string csv_cell(const std::string& text) {
+    std::string cell;
+    cell.reserve(text.size());
+    bool quote = false;
+    for (char c : text) {
+        if (c == '\n' || c == '\r') c = ' ';
+        if (c == ',' || c == '"') quote = true;
+        cell += c;
+        if (c == '"') cell += '"';
+    }
+    return quote ? '"' + cell + '"' : cell;
+}
+
+std::vector<std::string> split_csv_line(const std::string& line, const std::string& file, long line_number) {
     std::vector<std::string> cells;
-    std::size_t start = 0;
+    std::size_t i = 0;
     for (;;) {
-        const std::size_t comma = line.find(',', start);
-        cells.push_back(line.substr(start, comma == std::string::npos ? std::string::npos : comma - start));
-        if (comma == std::string::npos) break;
-        start = comma + 1;
+        std::string cell;
+        if (i < line.size() && line[i] == '"') {
+            ++i;
+            for (;;) {
+                if (i >= line.size()) throw InputError(file, line_number, "", "a quoted cell is not closed on its line");
+                if (line[i] == '"') {
+                    if (i + 1 < line.size() && line[i + 1] == '"') {
+                        cell += '"';
+                        i += 2;
+                        continue;
+                    }
+                    ++i;
+                    break;
+                }
+                cell += line[i++];
+            }
+            if (i < line.size() && line[i] != ',')
+                throw InputError(file, line_number, "", "text follows the closing quote of a cell (a quote inside a cell is written \"\")");
+        } else {
+            const std::size_t comma = line.find(',', i);
+            const std::size_t end = comma == std::string::npos ? line.size() : comma;
+            cell = line.substr(i, end - i);
+            i = end;
+        }
+        cells.push_back(std::move(cell));
+        if (i >= line.size()) break;
+        ++i;  // the comma
+        if (i == line.size()) {
+            cells.emplace_back();
+            break;
+        }
     }
     return cells;
 }

@@ -41,7 +41,15 @@ private:
     int fd_ = -1;
 };
 
-// The cells of one line of a plain CSV table (our tables quote nothing, so a comma always separates).
-std::vector<std::string> split_csv_line(const std::string& line);
+// The one CSV quoting routine (RFC 4180): every CSV table Wayward writes builds its cells with csv_cell and every
+// CSV it reads splits its lines with split_csv_line. A cell holding a comma or a double quote is written between
+// double quotes with each inner quote doubled; line breaks inside a cell become spaces, so one record is one line
+// (the readers, the torn-row repair of cases.csv and line numbers in errors rely on that). Hand-written because
+// the rule is a few lines and no Debian C++ CSV library is in the dependency set.
+std::string csv_cell(const std::string& text);
+
+// The cells of one line of a CSV table: quoted cells unquoted ("" inside them is one quote), others as they are.
+// Throws InputError(file, line, "") when a quoted cell is not closed or text follows its closing quote.
+std::vector<std::string> split_csv_line(const std::string& line, const std::string& file = "", long line_number = 0);
 
 }  // namespace wayward

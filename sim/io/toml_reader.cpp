@@ -1,7 +1,10 @@
 // Validating TOML reader; see toml_reader.hpp.
 #include "sim/io/toml_reader.hpp"
 
+#include <algorithm>
+#include <cctype>
 #include <cerrno>
+#include <charconv>
 #include <cmath>
 #include <cstring>
 #include <sstream>
@@ -202,6 +205,123 @@ std::string read_text_file(const std::string& path) {
     }
     ::close(fd);
     return text;
+}
+
+namespace {
+bool float_char(char c) { return (c >= '0' && c <= '9') || c == '.' || c == 'e' || c == 'E' || c == '+' || c == '-' || c == '_'; }
+
+// `token` rewritten in its shortest round-trip form when it is a whole TOML float (a '.' or an exponent); else as is.
+std::string shortest_float_token(const std::string& token) {
+    if (token.find_first_of(".eE") == std::string::npos || token.find('_') != std::string::npos) return token;
+    const char* begin = token.data() + (token[0] == '+' ? 1 : 0);
+    double v = 0.0;
+    const auto [end, ec] = std::from_chars(begin, token.data() + token.size(), v);
+    if (ec != std::errc() || end != token.data() + token.size() || !std::isfinite(v)) return token;
+    char buf[64];
+    const auto res = std::to_chars(buf, buf + sizeof buf, v);
+    std::string out(buf, res.ptr);
+    if (out.find_first_of(".e") == std::string::npos) out += ".0";  // TOML: a float needs a fraction or an exponent
+    return out;
+}
+}  // namespace
+
+std::string shortest_toml_floats(const std::string& text) {
+    std::string out;
+    out.reserve(text.size());
+    std::size_t i = 0;
+    bool value_side = false;  // after '=': only values are rewritten, never bare keys
+    int depth = 0;            // arrays and inline tables open on the value side (they may span lines)
+    while (i < text.size()) {
+        const char c = text[i];
+        if (c == '"' || c == '\'') {  // a string, basic or literal (possibly multi-line): copied as it is
+            const std::string quote = text.compare(i, 3, std::string(3, c)) == 0 ? std::string(3, c) : std::string(1, c);
+            std::size_t j = i + quote.size();
+            while (j < text.size() && text.compare(j, quote.size(), quote) != 0) j += (c == '"' && text[j] == '\\') ? 2 : 1;
+            j = std::min(text.size(), j + quote.size());
+            out.append(text, i, j - i);
+            i = j;
+        } else if (c == '#') {
+            const std::size_t j = std::min(text.size(), text.find('\n', i));
+            out.append(text, i, j - i);
+            i = j;
+        } else if (value_side && float_char(c) && (i == 0 || !float_char(text[i - 1])) && c != '_' &&
+                   (i == 0 || !(std::isalnum(static_cast<unsigned char>(text[i - 1])) || text[i - 1] == '_'))) {
+            std::size_t j = i;
+            while (j < text.size() && float_char(text[j])) ++j;
+            const bool word = j < text.size() && (std::isalpha(static_cast<unsigned char>(text[j])) || text[j] == ':');
+            const std::string token = text.substr(i, j - i);
+            out += word ? token : shortest_float_token(token);
+            i = j;
+        } else {
+            if (c == '=') value_side = true;
+            if (value_side && (c == '[' || c == '{')) ++depth;
+            if (value_side && (c == ']' || c == '}') && depth > 0) --depth;
+            if (c == '\n' && depth == 0) value_side = false;
+            out += c;
+            ++i;
+        }
+    }
+    return out;
+}
+
+namespace {
+// toml++ prints a long array one element per line; arrays of plain numbers or booleans (a solution's track holds
+// thousands) are joined here, several to a line of at most about 100 characters.
+std::string compact_scalar_arrays(const std::string& text) {
+    std::istringstream in(text);
+    std::vector<std::string> lines;
+    for (std::string l; std::getline(in, l);) lines.push_back(l);
+    auto scalar = [](const std::string& l) {
+        const std::size_t a = l.find_first_not_of(' ');
+        if (a == std::string::npos) return false;
+        for (std::size_t k = a; k < l.size(); ++k)
+            if (!(std::isalnum(static_cast<unsigned char>(l[k])) || l[k] == '.' || l[k] == '-' || l[k] == '+' || l[k] == '_' ||
+                  (l[k] == ',' && k + 1 == l.size())))
+                return false;
+        return true;
+    };
+    std::string out;
+    for (std::size_t i = 0; i < lines.size(); ++i) {
+        const std::string& l = lines[i];
+        std::size_t j = i + 1;
+        if (l.size() >= 3 && l.compare(l.size() - 3, 3, "= [") == 0) {
+            while (j < lines.size() && scalar(lines[j])) ++j;
+            const std::size_t close = j < lines.size() ? lines[j].find_first_not_of(' ') : std::string::npos;
+            if (j > i + 1 && close != std::string::npos && lines[j].substr(close) == "]") {
+                const std::string indent = lines[i + 1].substr(0, lines[i + 1].find_first_not_of(' '));
+                out += l + "\n" + indent;
+                std::size_t width = indent.size();
+                for (std::size_t k = i + 1; k < j; ++k) {
+                    std::string v = lines[k].substr(indent.size());
+                    if (!v.empty() && v.back() == ',') v.pop_back();
+                    if (k > i + 1) {
+                        if (width + v.size() + 2 > 100) {
+                            out += ",\n" + indent;
+                            width = indent.size();
+                        } else {
+                            out += ", ";
+                            width += 2;
+                        }
+                    }
+                    out += v;
+                    width += v.size();
+                }
+                out += "\n" + lines[j] + "\n";
+                i = j;
+                continue;
+            }
+        }
+        out += l + "\n";
+    }
+    if (!text.empty() && text.back() != '\n' && !out.empty()) out.pop_back();
+    return out;
+}
+}  // namespace
+
+std::string toml_text_shortest(const toml::table& t) {
+    std::ostringstream ss;
+    ss << t;
+    return compact_scalar_arrays(shortest_toml_floats(ss.str()));
 }
 
 }  // namespace wayward::detail

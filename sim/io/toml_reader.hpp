@@ -64,4 +64,11 @@ toml::table parse_toml(const std::string& text, const std::string& file);
 inline constexpr long long max_input_bytes = 256LL << 20;
 std::string read_text_file(const std::string& path);
 
+// A table as TOML text with every float in its shortest form that reads back to the same double (0.96, not
+// 0.95999999999999996): Debian's toml++ prints floats with max_digits10 digits (its charconv path is off under
+// GCC), so the printed text is rewritten here with std::to_chars, which gives the shortest round-trip form.
+std::string toml_text_shortest(const toml::table& t);
+// The same rewrite on TOML text: floats outside strings and comments become their shortest round-trip form.
+std::string shortest_toml_floats(const std::string& text);
+
 }  // namespace wayward::detail

@@ -73,7 +73,7 @@ struct Prediction {
 
 struct PredictOptions {
     double track_years = 60.0;      // track +- this around each epoch (cut at the span's ends)
-    double track_step_years = 0.25;
+    double track_step_years = 1.0 / 24.0;  // fine enough for the annual parallax wobble (no aliasing in the luck curve)
     int samples = 300;              // covariance samples (0: none)
     std::uint64_t seed = 1;         // of the samples
     unsigned threads = 1;           // for the samples (results do not depend on it)
@@ -98,5 +98,14 @@ Prediction predict_position(const ModelSetup& setup, const ModelState& state, do
 // Semi-axes (sqrt of the eigenvalues) and orientation (major axis, degrees from +lambda towards +beta, in
 // [0, 180)) of the 2x2 covariance [[cll, clb], [clb, cbb]].
 void ellipse_axes(double cll, double clb, double cbb, double& major, double& minor, double& orientation_deg);
+
+// The major axis's position angle in [0, 180) degrees: from north (+beta) through east (+lambda), the
+// astronomer's convention for the orientation of an ellipse on the sky, from ellipse_axes' orientation.
+inline double position_angle_deg(double orientation_deg) {
+    double pa = 90.0 - orientation_deg;
+    while (pa < 0.0) pa += 180.0;
+    while (pa >= 180.0) pa -= 180.0;
+    return pa;
+}
 
 }  // namespace wayward

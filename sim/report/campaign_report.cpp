@@ -22,7 +22,6 @@ namespace fs = std::filesystem;
 
 namespace {
 
-constexpr int resamples = 2000;
 constexpr double level = 0.95;
 
 // The rows grouped by settings and epoch, and by scenario and settings, in the order they first appear.
@@ -82,7 +81,7 @@ public:
         std::size_t first = 10;
         for (const std::string& n : g.settings) first = std::max(first, n.size() + 2);
         for (const std::string& n : g.scenarios) first = std::max(first, n.size() + 2);
-        cols_ = {{"settings", first}, {offsets ? "epoch (±yr)" : "epoch", 12}, {"cases", 7}, {"success", 9}, {"interval", 15},
+        cols_ = {{"settings", first}, {offsets ? "epoch (±yr)" : "epoch", 12}, {"cases", 7}, {"success", 9}, {"interval", 17},
                  {"median sep", 12}, {"90% sep", 10}, {"in 1σ", 7}, {"in 2σ", 7}, {"r90 holds", 11}, {"luck", 7}, {"closest − centre", 18}};
     }
     void header(const std::string& first) {
@@ -90,7 +89,7 @@ public:
         for (std::size_t k = 1; k < cols_.size(); ++k) t_ << pad(cols_[k].first, cols_[k].second);
         t_ << "\n";
     }
-    RateInterval line(const std::string& a, const std::string& b, const std::vector<const CaseRow*>& g, std::uint64_t seed) {
+    RateInterval line(const std::string& a, const std::string& b, const std::vector<const CaseRow*>& g) {
         std::vector<bool> hits;
         std::vector<double> sep, luck, closest;
         for (const CaseRow* r : g) {
@@ -101,7 +100,7 @@ public:
                 closest.push_back(r->closest_minus_centre_years());
             }
         }
-        const RateInterval ri = bootstrap_rate(hits, resamples, level, seed);
+        const RateInterval ri = wilson_rate(hits, level);
         auto in_sigma = [](double k) {
             return [k](const CaseRow& r) -> std::optional<bool> { if (!r.mahalanobis) return std::nullopt; return r.inside_sigma(k); };
         };
@@ -111,7 +110,7 @@ public:
         };
         const std::vector<std::string> cells = {
             a, b, std::to_string(g.size()), table_number("%.2f", ri.rate),
-            "[" + table_number("%.2f", ri.lo) + ", " + table_number("%.2f", ri.hi) + "]",
+            "[" + table_number("%.2f", ri.lo) + ", " + table_number("%.2f", ri.hi) + "]" + (g.size() < small_sample_cases ? " ~" : "  "),
             table_number("%.2f", quantile(sep, 0.5)), table_number("%.2f", quantile(sep, 0.9)),
             table_number("%.2f", fraction(g, in_sigma(1.0))), table_number("%.2f", fraction(g, in_sigma(2.0))),
             table_number("%.2f", fraction(g, r90)), table_number("%.2f", quantile(luck, 0.5)), table_number("%+.1f", quantile(closest, 0.5))};
@@ -187,19 +186,19 @@ std::string summary_text(const std::vector<CaseRow>& rows, const CampaignManifes
     if (!m.merged_from.empty()) t << " (merged from " << m.merged_from.size() << " folders)";
     t << "\n" << rows.size() << " cases: " << g.scenarios.size() << " scenario(s), " << g.seeds.size() << " system(s), " << g.settings.size()
       << " setting(s), " << g.x_value.size() << " epoch(s); " << g.failed << " failed\n\n";
-    t << "success: the true position within the field radius of the prediction at the epoch; interval: 95% percentile\n"
-         "bootstrap over the cases (" << resamples << " resamples). in 1σ, in 2σ: the truth inside the predicted 1σ or 2σ\n"
-         "ellipse (Gaussian errors would put it there 39% and 86% of the time). r90 holds: within the radius holding 90%\n"
-         "of the covariance samples. luck: fraction of the luck window inside the field. closest − centre: year of closest\n"
-         "agreement minus the data's centre (the σ-weighted mean observation time). Separations in arcmin; failed cases\n"
-         "count as misses.\n\n";
+    t << "success: the true position within the field radius of the prediction at the epoch; interval: 95% Wilson score\n"
+         "interval (~: fewer than " << small_sample_cases << " cases, a small sample, so the rate is rough). in 1σ, in 2σ: the truth\n"
+         "inside the predicted 1σ or 2σ ellipse (Gaussian errors would put it there 39% and 86% of the time). r90 holds:\n"
+         "within the radius holding 90% of the covariance samples. luck: fraction of the luck window inside the field.\n"
+         "closest − centre: year of closest agreement minus the data's centre (the σ-weighted mean observation time).\n"
+         "Separations in arcmin; failed cases count as misses.\n\n";
     SummaryTable table(t, g, m.epochs_are_offsets);
     table.header("settings");
     for (const auto& [key, group] : g.by_epoch) {
         const double x = g.x_value.at(key.second);
         const std::string epoch = m.epochs_are_offsets ? table_number("%+g", x) : table_number("%g", x);
         const RateInterval ri =
-            table.line(g.settings[key.first], epoch, group, derive_seed(key.first, "campaign-bootstrap-epoch", static_cast<std::uint64_t>(key.second)));
+            table.line(g.settings[key.first], epoch, group);
         curves.x[key.first].push_back(x);
         curves.rate[key.first].push_back(ri.rate);
         curves.lo[key.first].push_back(ri.lo);
@@ -210,7 +209,7 @@ std::string summary_text(const std::vector<CaseRow>& rows, const CampaignManifes
         t << "\nBy scenario (all epochs together):\n";
         table.header("scenario");
         for (const auto& [key, group] : g.by_scenario)
-            table.line(g.scenarios[key.first], g.settings[key.second], group, derive_seed(key.first, "campaign-bootstrap-scenario", key.second));
+            table.line(g.scenarios[key.first], g.settings[key.second], group);
     }
     if (g.failed) {
         t << "\nFailed cases:\n";
@@ -228,10 +227,10 @@ void plot_success(const CampaignManifest& m, const Groups& g, const Curves& c, c
     plot::Figure f;
     f.title = title;
     plot::Panel p;
-    p.title = "success rate against search epoch, with 95% bootstrap bands";
+    p.title = "success rate against search epoch, with 95% Wilson bands";
     p.x_label = m.epochs_are_offsets ? "search epoch − the scenario's search epoch (years)" : "search epoch (year)";
     p.y_label = "success rate";
-    p.y_range = std::make_pair(-0.02, 1.02);
+    p.y_range = std::make_pair(-0.06, 1.06);  // rates of 0 and 1 sit clear of the frame
     for (std::size_t s = 0; s < g.settings.size(); ++s) {
         plot::Series ser;
         ser.label = g.settings[s];
@@ -256,14 +255,36 @@ std::optional<std::pair<double, double>> value_range(const std::vector<double>& 
     return std::make_pair(*lo, *hi > *lo ? *hi : *lo + 1.0);
 }
 
+// A histogram drawn as its outline (a step line from 0 up and back to 0), so that the histograms of several
+// settings overlap without blending into a colour no legend names; the second and later ones dashed, so equal
+// outlines stay apart. With `log_edges` the bins were taken in log10 and the edges are turned back into values.
+plot::Series outline_series(const plot::Histogram& h, const std::string& label, std::size_t index, bool log_edges) {
+    plot::Series s;
+    s.label = label;
+    s.style = plot::Style::step;
+    s.width = 2.0;
+    s.dashed = index > 0;
+    if (h.edges.empty()) return s;
+    auto edge = [&](double e) { return log_edges ? std::pow(10.0, e) : e; };
+    s.x.push_back(edge(h.edges.front()));
+    s.y.push_back(0.0);
+    for (std::size_t k = 0; k < h.counts.size(); ++k) {
+        s.x.push_back(edge(h.edges[k]));
+        s.y.push_back(h.counts[k]);
+    }
+    s.x.push_back(edge(h.edges.back()));
+    s.y.push_back(0.0);
+    return s;
+}
+
 void plot_histograms(const std::vector<CaseRow>& rows, const Groups& g, const std::string& title, const std::string& path,
                      const std::string& panel_title, const std::string& label, const std::function<double(const CaseRow&)>& value,
-                     std::optional<std::pair<double, double>> range, const std::vector<plot::RefLine>& lines) {
+                     std::optional<std::pair<double, double>> range, const std::vector<plot::RefLine>& lines, bool log_x = false) {
     std::vector<std::vector<double>> v(g.settings.size());
     std::vector<double> all;
     for (const CaseRow& r : rows) {
         if (!r.ok) continue;
-        const double x = value(r);
+        const double x = log_x ? (value(r) > 0 ? std::log10(value(r)) : NAN) : value(r);
         if (!std::isfinite(x)) continue;
         v[g.settings_index(r.settings)].push_back(x);
         all.push_back(x);
@@ -275,8 +296,9 @@ void plot_histograms(const std::vector<CaseRow>& rows, const Groups& g, const st
     p.title = panel_title;
     p.x_label = label;
     p.y_label = "cases";
+    p.log_x = log_x;
     for (std::size_t s = 0; s < g.settings.size(); ++s)
-        p.series.push_back(plot::histogram_series(plot::bin_samples(v[s], bin_count(all.size()), range), g.settings[s]));
+        p.series.push_back(outline_series(plot::bin_samples(v[s], bin_count(all.size()), range), g.settings[s], s, log_x));
     p.lines = lines;
     f.panels.push_back(p);
     plot::save_png(f, path);
@@ -313,7 +335,7 @@ void plot_closest(const std::vector<CaseRow>& rows, const Groups& g, const std::
     h.y_label = "cases";
     const auto range = value_range(all);
     for (std::size_t s = 0; s < g.settings.size(); ++s)
-        h.series.push_back(plot::histogram_series(plot::bin_samples(per[s], bin_count(all.size()), range), g.settings[s]));
+        h.series.push_back(outline_series(plot::bin_samples(per[s], bin_count(all.size()), range), g.settings[s], s, false));
     h.lines.push_back({0.0, false, "data centre", std::nullopt, true});
     f.panels.push_back(h);
     plot::save_png(f, path);
@@ -334,11 +356,11 @@ std::string write_campaign_report(const std::vector<CaseRow>& rows, const Campai
     std::set<long long> radii;
     for (const CaseRow& r : rows)
         if (radii.insert(std::llround(r.field_radius_arcmin * 1e3)).second && r.field_radius_arcmin > 0)
-            radius_lines.push_back({std::log10(r.field_radius_arcmin), false, "field radius " + table_number("%g", r.field_radius_arcmin) + "′",
-                                    plot::palette(1), true});
+            radius_lines.push_back({r.field_radius_arcmin, false, "field radius " + table_number("%g", r.field_radius_arcmin) + "′",
+                                    std::nullopt, true});  // dark grey: no setting's colour
     plot_histograms(rows, g, title, at("separations.png"), "distribution of the separation between prediction and truth at the search epoch",
-                    "log10 of the separation (arcmin)", [](const CaseRow& r) { return r.separation_arcmin > 0 ? std::log10(r.separation_arcmin) : NAN; },
-                    std::nullopt, radius_lines);
+                    "separation (arcmin, log scale; bins of equal width in log)", [](const CaseRow& r) { return r.separation_arcmin; },
+                    std::nullopt, radius_lines, true);
     plot_histograms(rows, g, title, at("luck_fraction.png"), "distribution of the luck fraction (share of the luck window inside the field)",
                     "luck fraction", [](const CaseRow& r) { return r.luck_fraction; }, std::make_pair(0.0, 1.0), {});
     plot_closest(rows, g, title, at("closest_agreement.png"));

@@ -1,4 +1,4 @@
-// A campaign's report for people: summary.txt (success rate per settings and epoch with bootstrap intervals,
+// A campaign's report for people: summary.txt (success rate per settings and epoch with Wilson intervals,
 // separations, calibration of the stated ellipses and radii, the luck fraction, failed cases) and four plots
 // (success against epoch, separations, luck fractions, epoch of closest agreement).
 #pragma once

@@ -74,6 +74,7 @@ struct Panel {
     std::optional<std::pair<double, double>> x_range, y_range;  // default: fitted to the finite data
     bool legend = true;
     bool log_y = false;  // non-positive y values are skipped
+    bool log_x = false;  // a log10 x axis; non-positive x values are skipped
 };
 
 // Panels stacked vertically, sharing the width (and the x axis when share_x).
@@ -145,6 +146,10 @@ bool font_has_glyphs(const std::string& utf8);
 
 // Written atomically (a temporary file beside the target, then renamed). Throw std::runtime_error
 // naming the path on failure (unwritable path, size outside 16..32767 pixels).
+// With SVG copies on (the commands' --svg), save_png also writes the same figure as SVG beside the PNG (the same
+// name with .svg), so every figure of every command is available as vector graphics for a report.
+void set_svg_copies(bool on);
+bool svg_copies_on();
 void save_png(const Figure& figure, const std::string& path);
 void save_svg(const Figure& figure, const std::string& path);
 void save_png(const Bars& bars, const std::string& path);

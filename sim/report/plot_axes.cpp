@@ -154,11 +154,18 @@ Axis log_axis(bool have_data, double dlo, double dhi, std::optional<std::pair<do
         stride = std::max(1, stride / 2);
     }
     if (decades <= 2) {
-        for (int k = k0 - 1; k <= k1; ++k)
-            for (double m : {2.0, 5.0}) {
-                const double v = m * std::pow(10.0, k);
-                if (std::log10(v) >= llo - 1e-9 && std::log10(v) <= lhi + 1e-9) ticks.push_back({v, 1000});
-            }
+        // 2 and 5 inside each decade; in a range shorter than a decade, where those leave fewer than three
+        // labels (40 to 160 would show only 50 and 100), 3 as well, then every whole multiple.
+        const std::vector<std::pair<double, int>> decade_ticks = ticks;
+        for (const std::vector<double>& multiples : {std::vector<double>{2, 5}, {2, 3, 5}, {2, 3, 4, 5, 6, 7, 8, 9}}) {
+            ticks = decade_ticks;
+            for (int k = k0 - 1; k <= k1; ++k)
+                for (double m : multiples) {
+                    const double v = m * std::pow(10.0, k);
+                    if (std::log10(v) >= llo - 1e-9 && std::log10(v) <= lhi + 1e-9) ticks.push_back({v, 1000});
+                }
+            if (ticks.size() >= 3 || lhi - llo >= 1.0) break;
+        }
         std::sort(ticks.begin(), ticks.end());
     }
     if (ticks.size() < 2) {

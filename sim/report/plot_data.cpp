@@ -27,21 +27,25 @@ std::vector<Color> band_colors(const Panel& p) {
 
 DataRange x_data(const Panel& p) {
     DataRange r;
+    auto add = [&](double v) {
+        if (p.log_x && !(v > 0.0)) return;
+        r.add(v);
+    };
     for (const auto& s : p.series) {
         const std::size_t n = s.style == Style::histogram ? s.x.size() : std::min(s.x.size(), s.y.size());
         for (std::size_t i = 0; i < n; ++i)
-            if (s.style == Style::histogram || finite(s.y[i])) r.add(s.x[i]);
+            if (s.style == Style::histogram || finite(s.y[i])) add(s.x[i]);
     }
     for (const auto& b : p.bands) {
         const std::size_t n = std::min({b.x.size(), b.lo.size(), b.hi.size()});
         for (std::size_t i = 0; i < n; ++i)
-            if (finite(b.lo[i]) || finite(b.hi[i])) r.add(b.x[i]);
+            if (finite(b.lo[i]) || finite(b.hi[i])) add(b.x[i]);
     }
     for (const auto& l : p.lines)
-        if (!l.horizontal) r.add(l.value);
+        if (!l.horizontal) add(l.value);
     if (!r.have)  // spans only: show them
         for (const auto& s : p.spans)
-            if (s.along_x) { r.add(s.from); r.add(s.to); }
+            if (s.along_x) { add(s.from); add(s.to); }
     return r;
 }
 

@@ -1,5 +1,7 @@
 // Rendering the plots to PNG or SVG with cairo and writing the files atomically; the public entry points
 // (save_png, save_svg, plot_area). Part of the plot module (plot.hpp).
+#include <atomic>
+#include <filesystem>
 #include <stdexcept>
 
 #include <cairo-svg.h>
@@ -87,9 +89,28 @@ Rect plot_area(const Figure& figure, std::size_t index) {
     return L.panels[index].plot;
 }
 
-void save_png(const Figure& figure, const std::string& path) { save_figure(figure, path, Format::png); }
+namespace {
+std::atomic<bool> svg_copies{false};
+
+std::string svg_beside(const std::string& png_path) {
+    std::filesystem::path p(png_path);
+    p.replace_extension(".svg");
+    return p.string();
+}
+}  // namespace
+
+void set_svg_copies(bool on) { svg_copies = on; }
+bool svg_copies_on() { return svg_copies; }
+
+void save_png(const Figure& figure, const std::string& path) {
+    save_figure(figure, path, Format::png);
+    if (svg_copies) save_figure(figure, svg_beside(path), Format::svg);
+}
 void save_svg(const Figure& figure, const std::string& path) { save_figure(figure, path, Format::svg); }
-void save_png(const Bars& bars, const std::string& path) { save_bars(bars, path, Format::png); }
+void save_png(const Bars& bars, const std::string& path) {
+    save_bars(bars, path, Format::png);
+    if (svg_copies) save_bars(bars, svg_beside(path), Format::svg);
+}
 void save_svg(const Bars& bars, const std::string& path) { save_bars(bars, path, Format::svg); }
 
 }  // namespace wayward::plot

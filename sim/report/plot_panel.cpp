@@ -75,7 +75,9 @@ FigureLayout layout_figure(cairo_t* cr, const Figure& f) {
     auto make_x = [&](std::size_t i, double width) {
         const Panel& p = panels[i];
         const DataRange& d = (f.share_x && !p.x_range && shared.have) ? shared : xd[i];
-        return fitted_x_axis(cr, width, [&](int target) { return linear_axis(d.have, d.lo, d.hi, p.x_range, target); });
+        return fitted_x_axis(cr, width, [&](int target) {
+            return p.log_x ? log_axis(d.have, d.lo, d.hi, p.x_range, target) : linear_axis(d.have, d.lo, d.hi, p.x_range, target);
+        });
     };
     double left = 0.0;
     for (std::size_t i = 0; i < panels.size(); ++i) left = std::max(left, left_margin(cr, panels[i], L.panels[i].y));
@@ -130,12 +132,15 @@ void draw_spans(cairo_t* cr, const Panel& p, const Mapper& m) {
             const auto xend = [&](double v) { return std::isinf(v) ? (v < 0 ? a.x : a.x + a.w) : m.cpx(v); };
             const double x0 = xend(s.from), x1 = xend(s.to);
             if (!finite(x0) || !finite(x1)) continue;
-            cairo_rectangle(cr, std::min(x0, x1), a.y, std::abs(x1 - x0), a.h);
+            // At least 3 px wide, so a span of a single epoch (zero width in data) still shows.
+            const double w = std::max(std::abs(x1 - x0), 3.0), left = std::clamp(0.5 * (x0 + x1) - 0.5 * w, a.x, a.x + a.w - w);
+            cairo_rectangle(cr, std::abs(x1 - x0) >= 3.0 ? std::min(x0, x1) : left, a.y, w, a.h);
         } else {
             const auto yend = [&](double v) { return std::isinf(v) ? (v < 0 ? a.y + a.h : a.y) : m.cpy(v); };
             const double y0 = yend(s.from), y1 = yend(s.to);
             if (!finite(y0) || !finite(y1)) continue;
-            cairo_rectangle(cr, a.x, std::min(y0, y1), a.w, std::abs(y1 - y0));
+            const double h = std::max(std::abs(y1 - y0), 3.0), top = std::clamp(0.5 * (y0 + y1) - 0.5 * h, a.y, a.y + a.h - h);
+            cairo_rectangle(cr, a.x, std::abs(y1 - y0) >= 3.0 ? std::min(y0, y1) : top, a.w, h);
         }
         cairo_fill(cr);
     }

@@ -8,6 +8,7 @@
 
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
+#include "sim/io/fileio.hpp"
 #include "sim/physics/elements.hpp"
 
 namespace wayward {
@@ -23,15 +24,6 @@ Strategy strategy_by_name(const std::string& name) {
 }
 
 namespace {
-std::vector<std::string> split_csv(const std::string& line) {
-    std::vector<std::string> out;
-    std::string cell;
-    std::istringstream in(line);
-    while (std::getline(in, cell, ',')) out.push_back(cell);
-    if (!line.empty() && line.back() == ',') out.emplace_back();
-    return out;
-}
-
 double number_cell(const std::string& cell, const std::string& file, long line, const std::string& field) {
     std::size_t used = 0;
     double v = 0.0;
@@ -60,7 +52,7 @@ std::vector<PlanRow> parse_plan_csv(const std::string& text, const std::string& 
             header = true;
             continue;
         }
-        const auto cells = split_csv(line);
+        const auto cells = split_csv_line(line, file, n);
         if (cells.size() != 3) throw InputError(file, n, "row", "expected 3 values: night,lon_deg,lat_deg");
         PlanRow r;
         r.line = n;

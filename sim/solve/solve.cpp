@@ -518,7 +518,8 @@ std::string solution_toml(const Solution& s) {
     }
     root.insert("minimum", mins);
     std::ostringstream ss;
-    ss << "# Wayward solution: the hidden body inferred from the observations, and its predicted place.\n" << root << "\n";
+    ss << "# Wayward solution: the hidden body inferred from the observations, and its predicted place.\n"
+       << detail::toml_text_shortest(root) << "\n";
     return ss.str();
 }
 

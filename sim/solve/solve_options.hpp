@@ -30,7 +30,7 @@ struct SolveOptions {
     int samples = 300;                     // covariance samples for the ellipse check and the 90% radius
     std::optional<double> epoch_year;      // default: the brief's first search epoch
     double track_years = 60.0;             // predicted track +- this around the epoch
-    double track_step_years = 0.25;
+    double track_step_years = 1.0 / 24.0;  // fine enough for the annual parallax wobble (no aliasing in the luck curve)
     std::uint64_t seed = 1;                // for the covariance samples
     ModelOptions model;
     unsigned threads = 0;                  // 0: all cores (results do not depend on it)

@@ -48,7 +48,7 @@ std::string true_positions_csv(const ObservationSet& obs, double epoch0_year) {
     for (std::size_t k = 0; k < obs.records.size(); ++k) {
         const Observation& o = obs.records[k];
         const ObservationTruth& t = obs.truth[k];
-        s += fmt("%.8f", o.time_days) + "," + fmt("%.6f", decimal_year(epoch0_year, o.time_days)) + "," + o.target + "," +
+        s += fmt("%.8f", o.time_days) + "," + fmt("%.6f", decimal_year(epoch0_year, o.time_days)) + "," + csv_cell(o.target) + "," +
              fmt("%.12f", t.true_lon_deg) + "," + fmt("%.12f", t.true_lat_deg) + "," + fmt("%.6f", t.elongation_deg) + "," +
              (t.outlier ? "1" : "0") + "," + fmt("%.6f", t.systematic_lon_arcsec) + "," + fmt("%.6f", t.systematic_lat_arcsec) + "\n";
     }
