@@ -248,6 +248,18 @@ TEST_CASE("campaign rows: a row survives formatting and parsing, and a damaged r
     CHECK_FALSE(back.inside_sigma(1.0));
     CHECK(back.radius90_holds());
 
+    // A record that did not demand a body: status "undetected", no hit, the separation kept for the record.
+    CaseRow quiet = r;
+    quiet.detected = false;
+    quiet.hit = false;
+    const std::string qline = format_case_row(quiet);
+    CHECK(split_csv_line(qline.substr(0, qline.size() - 1))[6] == "undetected");
+    const CaseRow qback = parse_case_row(qline.substr(0, qline.size() - 1), "cases.csv", 7);
+    CHECK(qback.ok);
+    CHECK_FALSE(qback.detected);
+    CHECK_FALSE(qback.hit);
+    CHECK(format_case_row(qback) == qline);
+
     CaseRow failed = r;
     failed.ok = false;
     failed.note = "the solve failed: no fit, at all";  // the comma must not break the row

@@ -106,7 +106,8 @@ struct CaseRow {
     bool ok = true;                           // false: the case failed (note says why); it counts as a miss
     double separation_arcmin = NAN;
     double field_radius_arcmin = 0.0;
-    bool hit = false;
+    bool hit = false;                         // never for a case the detection test did not detect (no pointing)
+    bool detected = true;                     // the record demanded a hidden body (the solve's detection test)
     std::optional<double> mahalanobis;        // from the linear 1-sigma ellipse
     double radius90_arcmin = NAN;             // radius holding 90% of the covariance samples
     double luck_fraction = NAN;               // of the luck window inside the field radius

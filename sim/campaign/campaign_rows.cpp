@@ -76,7 +76,7 @@ std::string format_case_row(const CaseRow& r) {
     add(csv_cell(r.settings));
     add(cell_or_empty("%.4f", r.epoch_year));
     add(cell_or_empty("%.4f", r.epoch_offset_years));
-    add(r.ok ? "ok" : "failed");
+    add(!r.ok ? "failed" : r.detected ? "ok" : "undetected");
     add(cell_or_empty("%.6f", r.separation_arcmin));
     add(cell_or_empty("%.4f", r.field_radius_arcmin));
     add(r.hit ? "1" : "0");
@@ -135,8 +135,10 @@ CaseRow parse_case_row(const std::string& line, const std::string& file, long n)
     r.settings = c[3];
     r.epoch_year = number(4, true);
     r.epoch_offset_years = number(5, true);
-    if (c[6] != "ok" && c[6] != "failed") throw InputError(file, n, names[6], "\"" + c[6] + "\" is neither ok nor failed");
-    r.ok = c[6] == "ok";
+    if (c[6] != "ok" && c[6] != "failed" && c[6] != "undetected")
+        throw InputError(file, n, names[6], "\"" + c[6] + "\" is none of ok, undetected, failed");
+    r.ok = c[6] != "failed";
+    r.detected = c[6] != "undetected";
     r.separation_arcmin = number(7, r.ok);
     r.field_radius_arcmin = number(8, true);
     r.hit = flag(9);

@@ -200,7 +200,10 @@ std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, 
                 const Score s = score_prediction(ex.brief, truth, preds[e], spec.window_years);
                 CaseRow& r = rows[e];
                 r.separation_arcmin = s.separation_arcmin;
-                r.hit = s.hit;
+                // A record that does not demand a body gets no pointing (as `wayward solve` writes none): a miss,
+                // counted apart; the separation stays as what the best solution would have given.
+                r.detected = sol.detection.detected();
+                r.hit = r.detected && s.hit;
                 r.mahalanobis = s.mahalanobis;
                 r.radius90_arcmin = preds[e].samples_used > 0 ? preds[e].radius90_arcsec / 60.0 : NAN;
                 r.luck_fraction = s.luck_fraction_inside;
@@ -209,7 +212,7 @@ std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, 
                 r.data_centre_year = centre;
                 r.fitted_a_au = sol.best.semi_major_axis;
                 r.fitted_mass = sol.best.mass;
-                if (spec.search.on) search_case(spec, ex, truth, hidden_absolute_magnitude(data.ex->key), preds[e], data.seed, e, r);
+                if (spec.search.on && r.detected) search_case(spec, ex, truth, hidden_absolute_magnitude(data.ex->key), preds[e], data.seed, e, r);
             }
         } catch (const std::bad_alloc&) {
             if (cancelled()) return {};

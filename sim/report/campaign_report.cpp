@@ -30,7 +30,7 @@ struct Groups {
     std::map<std::pair<std::size_t, long long>, std::vector<const CaseRow*>> by_epoch;       // (settings, epoch key)
     std::map<std::pair<std::size_t, std::size_t>, std::vector<const CaseRow*>> by_scenario;  // (scenario, settings)
     std::map<long long, double> x_value;                                                      // epoch key -> x
-    std::size_t failed = 0;
+    std::size_t failed = 0, undetected = 0;
     std::set<std::uint64_t> seeds;
     std::size_t settings_index(const std::string& s) const {
         return static_cast<std::size_t>(std::find(settings.begin(), settings.end(), s) - settings.begin());
@@ -53,6 +53,7 @@ Groups group_rows(const std::vector<CaseRow>& rows, const CampaignManifest& m) {
         g.by_scenario[{ci, si}].push_back(&r);
         g.x_value[key] = x;
         g.failed += r.ok ? 0 : 1;
+        g.undetected += r.ok && !r.detected ? 1 : 0;
         g.seeds.insert(r.seed);
     }
     return g;
@@ -131,7 +132,8 @@ double nights_for_share(const std::vector<const CaseRow*>& rows, double q) {
     for (const CaseRow* r : rows)
         if (r->searched && r->search_found) nights.push_back(r->search_night);
     std::size_t n = 0;
-    for (const CaseRow* r : rows) n += r->searched || !r->ok ? 1 : 0;  // failed solves count as not found
+    // Failed solves and records that did not demand a body (no pointing, so no search) count as not found.
+    for (const CaseRow* r : rows) n += r->searched || !r->ok || !r->detected ? 1 : 0;
     std::sort(nights.begin(), nights.end());
     const auto needed = static_cast<std::size_t>(std::ceil(q * static_cast<double>(n) - 1e-9));
     if (n == 0 || needed == 0 || needed > nights.size()) return NAN;
@@ -157,7 +159,7 @@ void search_table(std::ostringstream& t, const CampaignManifest& m, const Groups
         std::size_t n = 0, found = 0;
         std::vector<double> night, hours;
         for (const CaseRow* r : group) {
-            if (!r->searched && r->ok) continue;
+            if (!r->searched && r->ok && r->detected) continue;
             ++n;
             if (r->searched && r->search_found) {
                 ++found;
@@ -185,7 +187,9 @@ std::string summary_text(const std::vector<CaseRow>& rows, const CampaignManifes
     t << "Campaign " << m.name << " (id " << m.id.substr(0, 12) << "), shard " << m.shard.text();
     if (!m.merged_from.empty()) t << " (merged from " << m.merged_from.size() << " folders)";
     t << "\n" << rows.size() << " cases: " << g.scenarios.size() << " scenario(s), " << g.seeds.size() << " system(s), " << g.settings.size()
-      << " setting(s), " << g.x_value.size() << " epoch(s); " << g.failed << " failed\n\n";
+      << " setting(s), " << g.x_value.size() << " epoch(s); " << g.failed << " failed";
+    if (g.undetected) t << "; " << g.undetected << " not detected (the record did not demand a hidden body: no pointing, a miss)";
+    t << "\n\n";
     t << "success: the true position within the field radius of the prediction at the epoch; interval: 95% Wilson score\n"
          "interval (~: fewer than " << small_sample_cases << " cases, a small sample, so the rate is rough). in 1σ, in 2σ: the truth\n"
          "inside the predicted 1σ or 2σ ellipse (Gaussian errors would put it there 39% and 86% of the time). r90 holds:\n"
