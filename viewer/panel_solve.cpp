@@ -10,6 +10,7 @@
 #include <filesystem>
 
 #include "sim/base/units.hpp"
+#include "sim/predict/near_star.hpp"
 #include "viewer/analysis.hpp"
 #include "viewer/calendar.hpp"
 #include "viewer/draw_util.hpp"
@@ -386,6 +387,16 @@ private:
                         format_deg(p.lat, 3).c_str(), p.distance_au);
             ImGui::Text("1\u03c3 %s \u00d7 %s at %.1f\u00b0; 90%% within %s", format_angle_arcmin(p.semi_major_arcsec / 60).c_str(),
                         format_angle_arcmin(p.semi_minor_arcsec / 60).c_str(), p.orientation_deg, format_angle_arcmin(p.radius90_arcsec / 60).c_str());
+            ImGui::PushTextWrapPos(0.0f);
+            const DetectionTest& d = s.detection;
+            if (d.threshold > 0.0)
+                ImGui::TextColored(d.detected() ? ImVec4(0.55f, 0.85f, 0.55f, 1.0f) : ImVec4(1.0f, 0.6f, 0.3f, 1.0f),
+                                   "%s: the body lowers χ² by %.1f; a detection needs %.1f",
+                                   d.detected() ? "Detected" : "NOT detected (the record does not demand a hidden body)",
+                                   std::max(0.0, d.delta_chi2), d.threshold);
+            if (const std::string near = near_star_caution(near_star(a.exercise().brief, p), p.epoch_year); !near.empty())
+                ImGui::TextColored(ImVec4(1.0f, 0.6f, 0.3f, 1.0f), "%s", near.c_str());
+            ImGui::PopTextWrapPos();
         } else {
             ImGui::Text("a = %.2f au, mass = %.3g, e = %.3f", o.semi_major_axis, o.mass, std::hypot(o.k, o.h));
             ImGui::Text("mean longitude %.2f\u00b0, \u03c7\u00b2 %.1f (\u0394 %.1f)", wrap_two_pi(o.mean_longitude) / deg, s.minima[k].chi2,

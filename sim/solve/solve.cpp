@@ -465,6 +465,10 @@ std::string solution_toml(const Solution& s) {
     head.insert("covariance_scaled", s.covariance_scaled);
     head.insert("spacing_rule_au", s.spacing_rule_au);
     head.insert("model_runs", static_cast<int64_t>(s.model_runs));
+    head.insert("detection_delta_chi2", s.detection.delta_chi2);
+    head.insert("detection_threshold", s.detection.threshold);
+    head.insert("detection_parameters", static_cast<int64_t>(s.detection.parameters));
+    head.insert("detection_trials", static_cast<int64_t>(s.detection.trials));
     root.insert("solution", head);
     toml::table h;
     const Elements el = s.best.elements();
@@ -539,6 +543,13 @@ Solution load_solution(const std::string& path) {
         s.covariance_scaled = r.boolean("covariance_scaled").value_or(false);
         s.spacing_rule_au = r.number_or("spacing_rule_au", 0.0);
         s.model_runs = static_cast<int>(r.integer_in("model_runs", 0, 1LL << 30).value_or(0));
+        // (Absent in files from before the detection test: threshold 0, which counts as detected.)
+        s.detection.delta_chi2 = r.number_or("detection_delta_chi2", 0.0);
+        s.detection.threshold = r.number_or("detection_threshold", 0.0);
+        if (!std::isfinite(s.detection.delta_chi2)) r.fail("detection_delta_chi2", "must be a finite number");
+        if (!(s.detection.threshold >= 0.0 && s.detection.threshold < 1e12)) r.fail("detection_threshold", "must be in [0, 1e12)");
+        s.detection.parameters = static_cast<int>(r.integer_in("detection_parameters", 0, 64).value_or(0));
+        s.detection.trials = static_cast<int>(r.integer_in("detection_trials", 1, 1LL << 30).value_or(1));
         r.finish();
     }
     if (const toml::table* h = root.table("hidden")) {
