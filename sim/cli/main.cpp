@@ -75,6 +75,7 @@ Command add_solve(CLI::App& app) {
     c->add_option("--threads", sv.threads, "threads (0: all cores; results do not depend on it)")->capture_default_str();
     c->add_flag("--quiet", sv.quiet, "no progress output");
     c->add_flag("--neglect-light-time", sv.neglect_light_time, "leave light time out of the model");
+    c->add_flag("--sky-map", sv.sky_map, "also write the prediction's probability map (DIR/skymap.fits, HEALPix) and its 50/90/99 % regions (DIR/skymap_regions.csv)");
     return {c, [args] { return run_solve(*args, std::cout, std::cerr); }};
 }
 

@@ -14,6 +14,7 @@
 #include "sim/truth/exercise_writer.hpp"
 #include "sim/io/fileio.hpp"
 #include "sim/fit/known_fit.hpp"
+#include "sim/commands/sky_map_command.hpp"
 #include "sim/report/luck_report.hpp"
 #include "sim/report/report.hpp"
 #include "sim/truth/generate.hpp"
@@ -193,6 +194,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     const SolveOptions o = solve_options(args);
     const Exercise ex = load_exercise(args.dir);
     refuse_link_at(args.dir + "/solution.toml");  // before the work, not after
+    if (args.sky_map) check_sky_map_request(args.dir);
     Progress bar(progress_out, args.quiet);
     SolveProgress sp;
     sp.report = [&](const std::string& stage, double f) { bar.update(stage, f); };
@@ -233,6 +235,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     out << std::defaultfloat;
     if (const std::string c = near_star_caution(near_star(ex.brief, p), p.epoch_year); !c.empty()) out << c << "\n";
     out << "Wrote " << args.dir << "/solution.toml\n";
+    if (args.sky_map) write_sky_map(args.dir, ex.brief, ex.brief.scenario_name, p, out);
     return 0;
 }
 

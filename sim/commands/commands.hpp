@@ -51,6 +51,7 @@ struct SolveArgs {
     unsigned threads = 0;
     bool quiet = false;
     bool neglect_light_time = false;
+    bool sky_map = false;  // also write DIR/skymap.fits and DIR/skymap_regions.csv
 };
 SolveOptions solve_options(const SolveArgs& args);  // parses the priors (InputError on bad values)
 int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress);
