@@ -56,6 +56,7 @@ struct SolveArgs {
     bool neglect_light_time = false;
     bool point_anyway = false;    // write the pointing even when the record does not demand a hidden body
     std::string out_file;  // where solution.toml goes (default: EXERCISE/solution.toml)
+    bool sky_map = false;  // also write DIR/skymap.fits and DIR/skymap_regions.csv
 };
 SolveOptions solve_options(const SolveArgs& args);  // parses the priors (InputError on bad values)
 int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress);

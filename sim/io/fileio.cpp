@@ -86,7 +86,18 @@ int remove_stale_temporaries(const std::string& dir) {
     for (fs::directory_iterator it(dir, ec), end; !ec && it != end; it.increment(ec)) {
         const std::string name = it->path().filename().string();
         if (name.empty() || name[0] != '.' || name.find(temporary_marker) == std::string::npos) continue;
-        if (!it->is_regular_file(ec) || it->is_symlink(ec)) continue;
+        if (it->is_symlink(ec)) continue;
+        if (it->is_directory(ec)) {
+            // A private folder a FITS writer left (see write_sky_map_fits): its files go (a link inside is unlinked,
+            // never followed), then the folder if it is empty; a folder within it is left alone.
+            for (fs::directory_iterator in(it->path(), ec), stop; !ec && in != stop; in.increment(ec))
+                if (!in->is_directory(ec) || in->is_symlink(ec)) fs::remove(in->path(), ec);
+            ec.clear();
+            if (fs::remove(it->path(), ec)) ++removed;
+            ec.clear();
+            continue;
+        }
+        if (!it->is_regular_file(ec)) continue;
         if (fs::remove(it->path(), ec)) ++removed;
     }
     return removed;

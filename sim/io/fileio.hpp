@@ -21,7 +21,8 @@ void refuse_link_at(const std::string& path, const std::string& field = "");
 // Every temporary of ours carries this marker in its name (".NAME.wayward-tmp-XXXXXX"), so that leftovers of a
 // killed run can be told apart from anything else in the folder.
 inline constexpr const char* temporary_marker = ".wayward-tmp-";
-// Removes leftover temporaries of ours (regular files whose name carries the marker) from `dir`; returns how many.
+// Removes leftover temporaries of ours (regular files whose name carries the marker, and folders so named with the
+// files in them) from `dir`; returns how many.
 // Call it only while holding the folder's lock, so a concurrent writer's temporary is never taken for a leftover.
 int remove_stale_temporaries(const std::string& dir);
 

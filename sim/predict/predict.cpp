@@ -174,6 +174,9 @@ void summarise_samples(const std::vector<std::vector<Offset>>& d, std::size_t k,
         const Offset& v = dk[k];
         if (!std::isfinite(v[0]) || !std::isfinite(v[1])) continue;
         radii.push_back(std::hypot(v[0], v[1]));
+        // The exact inverse of offsets_of's offsets: the sample's own position.
+        p.sample_lon.push_back(wrap_two_pi(p.lon + v[0] * arcsec / std::cos(p.lat)));
+        p.sample_lat.push_back(p.lat + v[1] * arcsec);
         sll += v[0] * v[0]; slb += v[0] * v[1]; sbb += v[1] * v[1];
     }
     p.samples_used = static_cast<int>(radii.size());

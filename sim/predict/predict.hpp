@@ -68,6 +68,8 @@ struct Prediction {
     double sampled_semi_major_arcsec = 0.0, sampled_semi_minor_arcsec = 0.0;
     double radius90_arcsec = 0.0;   // holds 90% of the sampled positions (about the predicted point)
     int samples_used = 0;
+    // The samples' own sky positions (radians; in memory only), for a probability map of the region.
+    std::vector<double> sample_lon, sample_lat;
     std::vector<TrackPoint> track;
 };
 

@@ -1,0 +1,41 @@
+// The sky map files of a solve; see sky_map_command.hpp.
+#include "sim/commands/sky_map_command.hpp"
+
+#include <cmath>
+
+#include "sim/base/errors.hpp"
+#include "sim/base/format.hpp"
+#include "sim/io/fileio.hpp"
+#include "sim/predict/sky_map.hpp"
+#include "sim/report/sky_map_file.hpp"
+
+namespace wayward {
+
+using detail::fmt;
+
+void check_sky_map_request(const std::string& dir) {
+    refuse_link_at(dir + "/" + sky_map_fits_name, "--sky-map");
+    refuse_link_at(dir + "/" + sky_map_regions_name, "--sky-map");
+}
+
+void write_sky_map(const std::string& dir, const Brief& brief, const std::string& scenario_name, const Prediction& p, std::ostream& out) {
+    if (p.sample_lon.size() < static_cast<std::size_t>(min_sky_map_samples))
+        throw std::runtime_error("sky map: only " + std::to_string(p.sample_lon.size()) + " of the covariance samples could be integrated");
+    // The resolution follows the sampled ellipse, the one the map is made of.
+    const int nside = sky_map_nside(p.sampled_semi_minor_arcsec);
+    const SkyMap map = make_sky_map(equal_weight_samples(p.sample_lon, p.sample_lat), nside);
+    const std::vector<RankedPixel> ranked = ranked_pixels(map);
+    const std::vector<SkyRegion> regions = sky_regions(map, ranked, {0.5, 0.9, 0.99});
+    const std::string csv_path = dir + "/" + sky_map_regions_name;
+    const std::string fits_path = dir + "/" + sky_map_fits_name;
+    write_sky_map_fits(fits_path, map, {scenario_name, p.epoch_year, static_cast<int>(p.sample_lon.size())});
+    write_file_atomic(csv_path, sky_map_regions_csv(brief, p.epoch_year, map, ranked, regions));
+    out << "Sky map at " << fmt("%.2f", p.epoch_year) << " (nside " << nside << ", " << fmt("%.2f", sky_map_pixel_arcmin(nside))
+        << " arcmin pixels, " << p.sample_lon.size() << " samples): 50/90/99 % regions " << fmt("%.4g", regions[0].area_deg2) << " / "
+        << fmt("%.4g", regions[1].area_deg2) << " / " << fmt("%.4g", regions[2].area_deg2) << " square degrees; wrote " << fits_path << ", "
+        << csv_path << "\n";
+    out << "  (in the observer planet's orbital plane, not ICRS; pixels inside the elongation limit are marked near_star. A real "
+           "observatory's own safety rules and scheduling tools take precedence.)\n";
+}
+
+}  // namespace wayward

@@ -1,0 +1,67 @@
+// The hidden body's probability map on the sky: weighted sky directions (a prediction's covariance samples)
+// turned into a HEALPix map (Gorski et al. 2005, ApJ 622, 759), one probability per pixel in NESTED order, and
+// its highest-probability regions (the smallest set of pixels holding a given share).
+//
+// Method: a Gaussian kernel density estimate. Each sample is spread over the pixels near it with the kernel
+// covariance H = n_eff^(-1/3) S (Scott's rule for two dimensions; Scott 1992, Multivariate Density Estimation,
+// ch. 6), S the samples' weighted covariance in the tangent plane at their mean direction, H's axes held at least
+// half a pixel wide; the kernels' centres are shrunk towards the mean (Liu & West 2001) so the map keeps the
+// samples' covariance, and each sample's kernel is normalised over the pixels it reaches so it contributes exactly
+// its weight. The tangent plane suits regions up to some tens of degrees away from the poles of the frame. Pixelisation is
+// Debian's HEALPix C++ library (libhealpix-cxx); nothing here is hand-written pixel geometry.
+// Angles in radians, areas in square degrees.
+#pragma once
+
+#include <cstdint>
+#include <vector>
+
+namespace wayward {
+
+struct SkySample {
+    double lon = 0.0, lat = 0.0;  // radians, in the exercise's frame (λ, β)
+    double weight = 1.0;          // any non-negative scale; normalised here
+};
+
+// The sample directions of a prediction, equally weighted.
+std::vector<SkySample> equal_weight_samples(const std::vector<double>& lon, const std::vector<double>& lat);
+
+// The resolution rule: the smallest power of two whose pixels (side = the square root of a pixel's area) are at
+// most a quarter of the 1-sigma ellipse's semi-minor axis, between min_sky_map_nside and max_sky_map_nside. The
+// cap keeps a whole-sky map near 100 MB (nside 1024: 12.6 million pixels of 3.4 arcmin).
+inline constexpr int min_sky_map_nside = 16;
+inline constexpr int max_sky_map_nside = 1024;
+int sky_map_nside(double semi_minor_arcsec);
+// Side of a pixel at that nside, arcmin.
+double sky_map_pixel_arcmin(int nside);
+
+struct SkyMap {
+    int nside = 0;
+    std::vector<double> probability;   // NESTED order, 12 nside^2 pixels, sums to 1
+    double pixel_area_deg2 = 0.0;
+    double kernel_major_arcsec = 0.0, kernel_minor_arcsec = 0.0;  // 1-sigma axes of the smoothing kernel
+    double effective_samples = 0.0;    // (sum w)^2 / sum w^2
+};
+
+// Throws InputError (field "samples") for no samples, a non-finite direction or weight, a negative weight or a
+// zero total weight, and for an nside that is not a power of two in [1, max_sky_map_nside].
+SkyMap make_sky_map(const std::vector<SkySample>& samples, int nside);
+
+// Centre of a NESTED pixel (radians).
+void sky_map_pixel_centre(int nside, std::int64_t pixel, double& lon, double& lat);
+
+struct SkyRegion {
+    double level = 0.0;       // share of the probability, e.g. 0.9
+    std::size_t pixels = 0;   // the smallest number of the most probable pixels holding at least `level`
+    double area_deg2 = 0.0;
+};
+
+// The pixels by probability, highest first (ties by index), with the running total; only pixels with p > 0.
+struct RankedPixel {
+    std::int64_t pixel = 0;
+    double probability = 0.0, cumulative = 0.0;
+};
+std::vector<RankedPixel> ranked_pixels(const SkyMap& map);
+// The regions for each level (each in (0, 1]), from the ranking above.
+std::vector<SkyRegion> sky_regions(const SkyMap& map, const std::vector<RankedPixel>& ranked, const std::vector<double>& levels);
+
+}  // namespace wayward

@@ -1,0 +1,126 @@
+// The sky map's FITS and CSV files; see sky_map_file.hpp.
+#include "sim/report/sky_map_file.hpp"
+
+#include <algorithm>
+#include <cerrno>
+#include <cstdlib>
+#include <cstring>
+#include <filesystem>
+#include <stdexcept>
+
+#include <fcntl.h>
+#include <unistd.h>
+
+#include <healpix_cxx/arr.h>
+#include <healpix_cxx/error_handling.h>
+#include <healpix_cxx/fitshandle.h>
+#include <healpix_cxx/healpix_map.h>
+#include <healpix_cxx/healpix_map_fitsio.h>
+
+#include "sim/base/errors.hpp"
+#include "sim/base/format.hpp"
+#include "sim/base/units.hpp"
+#include "sim/exercise/observer_path.hpp"
+#include "sim/io/fileio.hpp"
+
+namespace wayward {
+
+using detail::fmt;
+namespace fs = std::filesystem;
+
+namespace {
+
+void write_fits_into(const std::string& file, const SkyMap& map, const SkyMapHeader& h) {
+    Healpix_Map<double> hm(map.nside, NEST, SET_NSIDE);
+    for (std::size_t k = 0; k < map.probability.size(); ++k) hm[static_cast<int>(k)] = map.probability[k];
+    fitshandle out;
+    out.create(file);
+    arr<std::string> names(1);
+    names[0] = "PROB";
+    prepare_Healpix_fitsmap(out, hm, PLANCK_FLOAT64, names);
+    out.write_column(1, hm.Map());
+    // A frame of our own: no standard COORDSYS letter (G, E, C) fits an invented system, and a wrong letter
+    // would send a scheduler to the wrong sky.
+    out.set_key<std::string>("COORDSYS", "OBSPLANE", "lambda/beta in the observer planet's orbit plane");
+    out.set_key<std::string>("TTYPE1", "PROB", "probability per pixel; the map sums to 1");
+    out.set_key<std::string>("TUNIT1", "pix-1", "");
+    out.set_key<std::string>("CREATOR", "wayward", "a rehearsal tool for invented planetary systems");
+    out.set_key<std::string>("SCENARIO", h.scenario_name, "invented system");
+    out.set_key<double>("EPOCHYR", h.epoch_year, "year of the prediction this map belongs to");
+    out.set_key<int>("NSAMPLES", h.samples, "covariance samples of the solve behind the map");
+    out.set_key<double>("KERNMAJ", map.kernel_major_arcsec / 60.0, "arcmin, 1-sigma major axis of the smoothing kernel");
+    out.set_key<double>("KERNMIN", map.kernel_minor_arcsec / 60.0, "arcmin, 1-sigma minor axis of the smoothing kernel");
+    // FITS comment cards hold 72 characters; each line here fits one.
+    for (const char* line : {"FRAME: NOT ICRS, not galactic, not the Sun's ecliptic. An invented",
+                             "system's frame: the observer planet's orbital plane at epoch 0,",
+                             "longitude lambda (phi = lambda) and latitude beta (theta = 90 deg",
+                             "- beta), as the rest of Wayward uses.",
+                             "Pixel centres are not telescope pointings: a real observatory's own",
+                             "safety rules and scheduling tools take precedence, and real",
+                             "predictions need cross-checking with the team's own software."})
+        out.add_comment(line);
+    out.close();
+}
+
+}  // namespace
+
+void write_sky_map_fits(const std::string& path, const SkyMap& map, const SkyMapHeader& header) {
+    refuse_link_at(path);
+    const fs::path target(path);
+    const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
+    // cfitsio creates its file by name (fopen), which would follow a link planted at that name; a fresh folder
+    // of our own (mode 0700 from mkdtemp) holds the file until the rename, so no such link can exist there.
+    std::string tmp_name = ".";
+    tmp_name += target.filename().string();
+    tmp_name += temporary_marker;
+    tmp_name += "XXXXXX";
+    std::string tmp_dir = (dir / tmp_name).string();
+    if (::mkdtemp(tmp_dir.data()) == nullptr) throw std::runtime_error("cannot write " + path + ": " + std::strerror(errno));
+    const std::string tmp = tmp_dir + "/map.fits";
+    auto clean = [&] {
+        ::unlink(tmp.c_str());
+        ::rmdir(tmp_dir.c_str());
+    };
+    try {
+        write_fits_into(tmp, map, header);
+        const int fd = ::open(tmp.c_str(), O_RDONLY | O_NOFOLLOW | O_CLOEXEC);
+        if (fd < 0 || ::fsync(fd) != 0) throw std::runtime_error(std::strerror(errno));
+        ::close(fd);
+        refuse_link_at(path);  // once more, just before the rename (rename itself never follows a link)
+        if (::rename(tmp.c_str(), path.c_str()) != 0) throw std::runtime_error(std::strerror(errno));
+    } catch (const PlanckError& e) {
+        clean();
+        throw std::runtime_error("cannot write " + path + ": " + e.what());
+    } catch (const InputError&) {
+        clean();
+        throw;
+    } catch (const std::runtime_error& e) {
+        clean();
+        throw std::runtime_error("cannot write " + path + ": " + e.what());
+    }
+    ::rmdir(tmp_dir.c_str());
+}
+
+std::string sky_map_regions_csv(const Brief& brief, double epoch_year, const SkyMap& map, const std::vector<RankedPixel>& ranked,
+                                const std::vector<SkyRegion>& regions) {
+    std::size_t rows = 0;
+    for (const SkyRegion& g : regions) rows = std::max(rows, g.pixels);
+    const ObserverPath path = kepler_observer_path(brief);
+    const double t = days_from_year(brief.epoch0_year, epoch_year);
+    std::string s = "pixel,lon_deg,lat_deg,probability,cumulative,region,elongation_deg,near_star\n";
+    for (std::size_t k = 0; k < rows && k < ranked.size(); ++k) {
+        const RankedPixel& p = ranked[k];
+        double lon = 0, lat = 0;
+        sky_map_pixel_centre(map.nside, p.pixel, lon, lat);
+        double region = 100.0;
+        for (const SkyRegion& g : regions)
+            if (k < g.pixels) region = std::min(region, g.level * 100.0);
+        const double elongation = elongation_from_star(path, lon, lat, t) / deg;
+        s += std::to_string(p.pixel) + "," + fmt("%.6f,", lon / deg) + fmt("%.6f,", lat / deg) + fmt("%.9e,", p.probability) +
+             fmt("%.9f,", p.cumulative) + fmt("%g,", region) + fmt("%.3f,", elongation) +
+             (elongation < brief.elongation_limit_deg ? "1\n" : "0\n");
+    }
+    return s;
+}
+
+}  // namespace wayward

@@ -1,0 +1,122 @@
+#!/usr/bin/env python3
+"""`wayward solve --sky-map` read back by an independent reader (healpy, Debian's python3-healpy).
+
+Usage: sky_map_check.py WAYWARD SOURCE_DIR [PNG]
+Makes a quick exercise, solves it with --sky-map, and checks the HEALPix FITS map and the regions CSV against
+healpy's reading of the file; a symbolic link planted at skymap.fits must be refused (exit 2) with nothing
+written through it. With PNG, also saves a gnomonic view of the map around its peak (to look at).
+"""
+import csv
+import math
+import os
+import re
+import subprocess
+import sys
+import tempfile
+import tomllib
+
+import healpy as hp
+import numpy as np
+
+wayward, src = sys.argv[1], sys.argv[2]
+png = sys.argv[3] if len(sys.argv) > 3 else None
+failures = []
+
+
+def check(ok, what):
+    print(("ok   " if ok else "FAIL ") + what)
+    if not ok:
+        failures.append(what)
+
+
+def run(*args):
+    return subprocess.run([wayward, *args], capture_output=True, text=True)
+
+
+with tempfile.TemporaryDirectory() as work:
+    ex = os.path.join(work, "ex")
+    r = run("new", os.path.join(src, "scenarios", "quick.toml"), "--seed", "3", "--out", ex)
+    assert r.returncode == 0, r.stderr
+    r = run("solve", ex, "--sky-map", "--quiet", "--threads", "2")
+    assert r.returncode == 0, r.stderr
+    line = next(l for l in r.stdout.splitlines() if l.startswith("Sky map at "))
+    print(line)
+
+    # --- The map as healpy reads it (healpy.read_map with nest=None keeps the file's own ordering).
+    prob, header = hp.read_map(os.path.join(ex, "skymap.fits"), nest=None, h=True, dtype=np.float64)
+    comments = " ".join(str(v) for k, v in header if k == "COMMENT")
+    header = dict(header)
+    nside = hp.npix2nside(prob.size)
+    # HEALPix FITS convention (Gorski et al. 2005; healpy reads ORDERING to decide NESTED or RING).
+    check(header.get("ORDERING") == "NESTED", "ORDERING keyword says NESTED (healpy.read_map header)")
+    check(header.get("PIXTYPE") == "HEALPIX" and int(header.get("NSIDE", -1)) == nside, "PIXTYPE and NSIDE keywords")
+    check(header.get("COORDSYS") == "OBSPLANE", "COORDSYS keyword names the observer's orbital plane")
+    check("NOT ICRS" in comments and "orbital plane at epoch 0" in comments, "a header comment says the frame is not ICRS")
+    # healpy.read_map: probabilities sum to 1.
+    check(abs(prob.sum() - 1.0) < 1e-9 and prob.min() >= 0.0, f"probabilities sum to 1 within 1e-9 (sum - 1 = {prob.sum() - 1:.2e})")
+
+    # --- The peak against the solve's predicted point (healpy.ang2pix, healpy.get_all_neighbours, healpy.rotator.angdist).
+    # Along a long ellipse's major axis the top of the map is flat over several pixels (neighbours within a percent
+    # of the peak), so "within one pixel" is read as: the predicted point's own pixel is the peak pixel or touches it.
+    with open(os.path.join(ex, "solution.toml"), "rb") as fh:
+        pred = tomllib.load(fh)["prediction"]
+    peak = int(np.argmax(prob))
+    peak_lon, peak_lat = hp.pix2ang(nside, peak, nest=True, lonlat=True)
+    sep = math.degrees(hp.rotator.angdist([peak_lon, peak_lat], [pred["lon_deg"], pred["lat_deg"]], lonlat=True)[0])
+    pixel_deg = math.degrees(hp.nside2resol(nside))
+    own = int(hp.ang2pix(nside, pred["lon_deg"], pred["lat_deg"], nest=True, lonlat=True))
+    touching = [own] + [int(q) for q in hp.get_all_neighbours(nside, own, nest=True) if q >= 0]
+    check(peak in touching, f"peak pixel is the predicted point's pixel or its neighbour: {sep * 60:.2f} arcmin from the point "
+          f"({sep / pixel_deg:.2f} pixel sides), its own pixel holds {prob[own] / prob[peak]:.4f} of the peak")
+    # The map's probability-weighted mean direction (healpy.pix2vec) within one pixel side of the predicted point.
+    nz = np.nonzero(prob)[0]
+    mean = (np.array(hp.pix2vec(nside, nz, nest=True)) * prob[nz]).sum(axis=1)
+    mean_lon, mean_lat = hp.vec2ang(mean, lonlat=True)
+    msep = math.degrees(hp.rotator.angdist([mean_lon[0], mean_lat[0]], [pred["lon_deg"], pred["lat_deg"]], lonlat=True)[0])
+    check(msep <= pixel_deg, f"the map's mean {msep * 60:.2f} arcmin from the predicted point, one pixel is {pixel_deg * 60:.2f} arcmin")
+
+    # --- The 90 % region: healpy's count of the most probable pixels holding 90 %, times healpy.nside2pixarea.
+    ranked = np.sort(prob)[::-1]
+    n90 = int(np.searchsorted(np.cumsum(ranked), 0.9) + 1)
+    area_pix = hp.nside2pixarea(nside, degrees=True)
+    area90 = n90 * area_pix
+    printed = [float(x) for x in re.search(r"regions (\S+) / (\S+) / (\S+) square degrees", line).groups()]
+    with open(os.path.join(ex, "skymap_regions.csv")) as fh:
+        rows = list(csv.DictReader(fh))
+    csv90 = sum(1 for row in rows if float(row["region"]) <= 90)
+    check(abs(csv90 - n90) <= 1, f"90 % region: {csv90} pixels in the CSV, {n90} by healpy")
+    # The printed figure has 4 significant digits: within one pixel plus its rounding.
+    check(abs(printed[1] - area90) <= area_pix + 5e-4 * area90, f"90 % area printed {printed[1]} deg2, healpy {area90:.4f} deg2")
+    check(printed[0] < printed[1] < printed[2], "the 50/90/99 % areas grow")
+    # The CSV's pixels are healpy's (healpy.pix2ang of the NESTED index gives the centre it lists).
+    first = rows[0]
+    lon0, lat0 = hp.pix2ang(nside, int(first["pixel"]), nest=True, lonlat=True)
+    check(int(first["pixel"]) == peak and abs(float(first["lon_deg"]) - lon0) < 1e-5 and abs(float(first["lat_deg"]) - lat0) < 1e-5,
+          "the CSV's first row is the peak pixel, at healpy's centre")
+    check(abs(float(rows[-1]["cumulative"]) - 0.99) < 0.01 + float(rows[-1]["probability"]), "the CSV ends where 99 % is reached")
+
+    if png:
+        import matplotlib
+        matplotlib.use("Agg")
+        import matplotlib.pyplot as plt
+        reso = pixel_deg * 60 / 7  # arcmin per image pixel: a few degrees across, the ellipse filling the middle
+        hp.gnomview(prob, nest=True, rot=(peak_lon, peak_lat), xsize=400, reso=reso, title="skymap.fits around its peak")
+        hp.projplot(pred["lon_deg"], pred["lat_deg"], "w+", lonlat=True, markersize=12)
+        plt.savefig(png, dpi=80)
+
+    # --- Bad input: a symbolic link at skymap.fits is refused before any work, and nothing is written through it.
+    target = os.path.join(work, "elsewhere.fits")
+    with open(target, "w") as fh:
+        fh.write("untouched")
+    os.remove(os.path.join(ex, "skymap.fits"))
+    os.symlink(target, os.path.join(ex, "skymap.fits"))
+    r = run("solve", ex, "--sky-map", "--quiet")
+    check(r.returncode == 2 and "symbolic link" in r.stderr, f"a link at skymap.fits: exit {r.returncode}, {r.stderr.strip()}")
+    check(open(target).read() == "untouched" and os.path.islink(os.path.join(ex, "skymap.fits")), "nothing written through the link")
+    os.remove(os.path.join(ex, "skymap.fits"))
+    r = run("solve", ex, "--sky-map", "--samples", "5", "--quiet")
+    check(r.returncode == 2 and "--samples" in r.stderr and not os.path.exists(os.path.join(ex, "skymap.fits")),
+          f"too few samples: exit {r.returncode}, {r.stderr.strip()}")
+    check(not any(".wayward-tmp-" in f for f in os.listdir(ex)), "no temporaries left in the folder")
+
+sys.exit(1 if failures else 0)
