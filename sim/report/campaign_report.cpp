@@ -168,8 +168,9 @@ void search_table(std::ostringstream& t, const CampaignManifest& m, const Groups
             }
         }
         const WilsonInterval wi = wilson_interval(static_cast<double>(found), static_cast<double>(n));
+        const std::vector<const CaseRow*>& cases = group;  // (a structured binding cannot be captured before C++20's fix in clang 16)
         auto nights_cell = [&](double q) {
-            const double v = nights_for_share(group, q);
+            const double v = nights_for_share(cases, q);
             return std::isfinite(v) ? table_number("%.0f", v) : std::string("-");
         };
         const std::vector<std::string> cells = {
