@@ -149,15 +149,11 @@ int run_new(const NewArgs& args, std::ostream& out) {
     out << "; field radius " << sc.plan.field_radius_deg << " deg\n";
     // For the trainer who runs `new` (the trainee's folder carries nothing of it): a search epoch at which the
     // hidden body itself stands within the elongation limit cannot end at the telescope.
-    if (const auto h = truth.hidden_index())
-        for (double y : sc.plan.search_epochs_year) {
-            const double days = std::clamp(days_from_year(sc.epoch0_year, y), run.ephemeris.t_begin(), run.ephemeris.t_end());
-            const double e_deg = elongation(run.ephemeris, truth.system.observer_index(), *h, days) / deg;
-            if (e_deg < sc.plan.elongation_limit_deg)
-                out << "Trainer's note (not in the exercise folder): at the search epoch " << y << " the hidden body is "
-                    << std::setprecision(3) << e_deg << " deg from the star, inside the elongation limit of "
-                    << sc.plan.elongation_limit_deg << " deg: it cannot be searched then.\n" << std::setprecision(6);
-        }
+    for (const HiddenAtSearch& h : hidden_at_search_epochs(truth, sc, run.ephemeris))
+        if (h.inside_limit)
+            out << "Trainer's note (not in the exercise folder): at the search epoch " << h.year << " the hidden body is "
+                << std::setprecision(3) << h.elongation_deg << " deg from the star, inside the elongation limit of "
+                << sc.plan.elongation_limit_deg << " deg: it cannot be searched then.\n" << std::setprecision(6);
     return 0;
 }
 

@@ -26,8 +26,7 @@ ObserverPath kepler_observer_path(const Brief& brief) {
 
 double elongation_from_star(const ObserverPath& path, double lon, double lat, double t_days) {
     const Vec3 star = -path(t_days);
-    const Vec3 d(std::cos(lat) * std::cos(lon), std::cos(lat) * std::sin(lon), std::sin(lat));
-    return std::acos(std::clamp(star.normalized().dot(d), -1.0, 1.0));
+    return std::acos(std::clamp(star.normalized().dot(unit_vector(lon, lat)), -1.0, 1.0));
 }
 
 }  // namespace wayward

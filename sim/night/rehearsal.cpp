@@ -139,12 +139,11 @@ void searched(NightContext& c, const Field& f, double t) {
 // motion over D (at most the circular speed at the outermost known planet), plus 5 sigma. This does not lean on
 // the solution's predicted rate, which is wrong whenever the solution's distance or phase is, and it keeps two
 // unrelated transients from passing for one moving body.
-Vec3 unit_of(double lon, double lat) { return {std::cos(lat) * std::cos(lon), std::cos(lat) * std::sin(lon), std::sin(lat)}; }
 
 // The distance from the displacement (east, north, radians) that a body beyond the known planets could have made
 // between days t0 and t1 from direction (lon, lat); 0 when it fits such a body exactly.
 double beyond_known_miss(const NightContext& c, double lon, double lat, double t0, double t1, double east, double north) {
-    const Vec3 u = unit_of(lon, lat);
+    const Vec3 u = unit_vector(lon, lat);
     const Vec3 e(-std::sin(lon), std::cos(lon), 0.0);
     const Vec3 n(-std::sin(lat) * std::cos(lon), -std::sin(lat) * std::sin(lon), std::cos(lat));
     const Vec3 dx = c.team_path(t1) - c.team_path(t0);

@@ -189,23 +189,30 @@ static void draw_surfaces(const Scenario& sc, std::uint64_t seed, Truth& t) {
     }
 }
 
-Plausibility check_search_view(const Truth& t, const Scenario& sc, const IntegrationResult& run) {
-    if (!sc.rules.hidden_clear_of_star || !sc.plan.present) return {};
-    const Ephemeris& eph = run.ephemeris;
+std::vector<HiddenAtSearch> hidden_at_search_epochs(const Truth& t, const Scenario& sc, const Ephemeris& eph) {
+    std::vector<HiddenAtSearch> out;
+    if (!sc.plan.present) return out;
     const std::size_t observer = t.system.observer_index();
     for (std::size_t i = 0; i < t.system.bodies.size(); ++i) {
         if (t.system.bodies[i].role != Role::hidden) continue;
         for (double year : sc.plan.search_epochs_year) {
             const double days = std::clamp(days_from_year(t.epoch0_year, year), eph.t_begin(), eph.t_end());
             const double e_deg = elongation(eph, observer, i, days) / deg;
-            if (!(e_deg > sc.plan.elongation_limit_deg)) {
-                std::ostringstream msg;
-                msg << t.system.bodies[i].name << " stands " << e_deg << " deg from the star at the search epoch " << year
-                    << ", inside the elongation limit of " << sc.plan.elongation_limit_deg << " deg (hidden_clear_of_star)";
-                return {false, msg.str()};
-            }
+            out.push_back({t.system.bodies[i].name, year, e_deg, !(e_deg > sc.plan.elongation_limit_deg)});
         }
     }
+    return out;
+}
+
+Plausibility check_search_view(const Truth& t, const Scenario& sc, const IntegrationResult& run) {
+    if (!sc.rules.hidden_clear_of_star) return {};
+    for (const HiddenAtSearch& h : hidden_at_search_epochs(t, sc, run.ephemeris))
+        if (h.inside_limit) {
+            std::ostringstream msg;
+            msg << h.name << " stands " << h.elongation_deg << " deg from the star at the search epoch " << h.year
+                << ", inside the elongation limit of " << sc.plan.elongation_limit_deg << " deg (hidden_clear_of_star)";
+            return {false, msg.str()};
+        }
     return {};
 }
 

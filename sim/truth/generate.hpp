@@ -53,6 +53,15 @@ struct Plausibility {
 Plausibility check_spacing(const Truth& t, const PlausibilityRules& rules);
 // The check integration over the span: close encounters and energy error.
 Plausibility check_dynamics(const Truth& t, const PlausibilityRules& rules, const IntegrationResult& run);
+// Each hidden body's elongation from the star at each search epoch, and whether it lies within the plan's limit.
+struct HiddenAtSearch {
+    std::string name;
+    double year = 0.0;
+    double elongation_deg = 0.0;
+    bool inside_limit = false;
+};
+std::vector<HiddenAtSearch> hidden_at_search_epochs(const Truth& t, const Scenario& sc, const Ephemeris& eph);
+
 // With the scenario's hidden_clear_of_star rule: every hidden body farther from the star than the elongation
 // limit at every search epoch (otherwise always plausible).
 Plausibility check_search_view(const Truth& t, const Scenario& sc, const IntegrationResult& run);
