@@ -258,6 +258,6 @@ TEST_CASE("a log axis over less than a decade labels at least three values") {
     for (double t : a.ticks) CHECK((t >= a.lo && t <= a.hi));
     // Over a decade and more, the decades and 2 and 5 as before: no crowding.
     const plot::detail::Axis b = plot::detail::log_axis(true, 3.0, 90.0, std::nullopt, 6);
-    for (const std::string& l : {"3", "30", "4", "40"}) CHECK(std::find(b.labels.begin(), b.labels.end(), l) == b.labels.end());
+    for (const char* l : {"3", "30", "4", "40"}) CHECK(std::find(b.labels.begin(), b.labels.end(), l) == b.labels.end());
     CHECK(std::find(b.labels.begin(), b.labels.end(), "10") != b.labels.end());
 }

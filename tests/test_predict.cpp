@@ -127,3 +127,39 @@ TEST_CASE("parameter layout: the hidden orbit of a vector, and the steps of each
     y[f.i_logm] = std::log(1e-5);
     CHECK(f.hidden(y).semi_major_axis == 42.0);
 }
+
+TEST_CASE("covariance samples are propagated linearly only where a pilot run through the model shows the map is linear") {
+    const Scenario tutorial = load_scenario(testing::source_path("scenarios/tutorial.toml"));
+    IntegrationResult run;
+    const std::uint64_t seed = 1;
+    const Truth truth = generate(tutorial, seed, &run);
+    const ObservationSet obs = observe(tutorial, truth, run.ephemeris, seed);
+    const ExerciseInMemory m = exercise_in_memory(tutorial, truth, obs, make_brief(tutorial, truth, seed), run.ephemeris);
+    SolveOptions o;
+    o.threads = 2;
+    const Solution sol = solve(m.exercise, o);
+    const Prediction& mixed = sol.prediction;
+    PredictOptions full = prediction_options(o);
+    full.linear_tolerance = 0.0;  // every sample through the model
+    const Prediction all = predict(*sol.setup, sol.fit, {mixed.epoch_year}, full).front();
+    // Tutorial's region is a small linear patch: the pilot passes and the rest are propagated linearly.
+    CHECK(all.samples_in_full == 300);
+    CHECK(mixed.samples_in_full == 40);
+    CHECK(mixed.samples_used == 300);
+    CHECK(mixed.pilot_departure < 0.02);
+    // The same draws either way: the sampled ellipse and the 90 % radius agree to the pilot's tolerance.
+    CHECK(std::abs(mixed.radius90_arcsec / all.radius90_arcsec - 1.0) < 0.02);
+    CHECK(std::abs(mixed.sampled_semi_major_arcsec / all.sampled_semi_major_arcsec - 1.0) < 0.02);
+    CHECK(std::abs(mixed.sampled_semi_minor_arcsec / all.sampled_semi_minor_arcsec - 1.0) < 0.02);
+
+    // The hard scenario's distance is poorly known and its region far from linear: the pilot fails and every
+    // sample is run through the model.
+    const Scenario hard = load_scenario(testing::source_path("scenarios/hard.toml"));
+    IntegrationResult run_h;
+    const Truth truth_h = generate(hard, seed, &run_h);
+    const ObservationSet obs_h = observe(hard, truth_h, run_h.ephemeris, seed);
+    const ExerciseInMemory h = exercise_in_memory(hard, truth_h, obs_h, make_brief(hard, truth_h, seed), run_h.ephemeris);
+    const Solution sol_h = solve(h.exercise, o);
+    CHECK(sol_h.prediction.pilot_departure > 0.02);
+    CHECK(sol_h.prediction.samples_in_full == sol_h.prediction.samples_used);
+}

@@ -5,6 +5,7 @@
 #include <limits>
 
 #include "sim/base/errors.hpp"
+#include "sim/commands/commands.hpp"
 #include "sim/solve/solve_options.hpp"
 
 using namespace wayward;
@@ -55,4 +56,32 @@ TEST_CASE("solve options: a value out of range names the library field, with no 
         SolveOptions o;
         CHECK_THROWS_AS(set_distance_prior(o, bad), InputError);
     }
+}
+
+TEST_CASE("solve command: the fitting model and its derivatives are chosen by name and checked") {
+    SolveArgs a;
+    a.dir = "ex";
+    CHECK(solve_options(a).model.integrator == "wisdom-holman");
+    CHECK(solve_options(a).model.derivatives == "variational");
+    a.derivatives = "differences";
+    CHECK(solve_options(a).model.derivatives == "differences");
+    // The adaptive reference has no tangent map: it always takes differences.
+    a.fitting_model = "adaptive";
+    a.derivatives = "variational";
+    CHECK(solve_options(a).model.integrator == "adaptive");
+    CHECK(solve_options(a).model.derivatives == "differences");
+    auto flag_of = [](const SolveArgs& bad) {
+        try {
+            solve_options(bad);
+        } catch (const InputError& e) {
+            return e.field();
+        }
+        return std::string("(accepted)");
+    };
+    SolveArgs b;
+    b.fitting_model = "leapfrog";
+    CHECK(flag_of(b) == "--fitting-model");
+    SolveArgs c;
+    c.derivatives = "automatic";
+    CHECK(flag_of(c) == "--derivatives");
 }

@@ -236,8 +236,9 @@ TEST_CASE("the fitting model's integrators are chosen by name from one table") {
 }
 
 TEST_SUITE("slow") {
-TEST_CASE("solutions with the Wisdom-Holman model agree with the adaptive model's to a tenth of their own sigma") {
-    // Every bundled scenario, seed 1, the noise `wayward new` draws; default solve options with each model.
+TEST_CASE("solutions with the Wisdom-Holman model and its tangent map agree with the adaptive model's to a tenth of their own sigma") {
+    // Every bundled scenario, seed 1, the noise `wayward new` draws; default solve options with each model: the
+    // reference takes its Jacobians by forward differences, the map by its tangent map.
     for (const char* name : {"quick", "tutorial", "default", "classic", "hard"}) {
         CAPTURE(name);
         const Scenario sc = load_scenario(testing::source_path(std::string("scenarios/") + name + ".toml"));
@@ -245,8 +246,10 @@ TEST_CASE("solutions with the Wisdom-Holman model agree with the adaptive model'
         SolveOptions o;
         o.threads = 2;
         o.model.integrator = "adaptive";
+        o.model.derivatives = "differences";
         const Solution ref = solve(m.ex.exercise, o);
         o.model.integrator = "wisdom-holman";
+        o.model.derivatives = "variational";
         const Solution fast = solve(m.ex.exercise, o);
         const Prediction& p = ref.prediction;
         const double sep = separation({p.lon, p.lat}, {fast.prediction.lon, fast.prediction.lat}) / arcsec;
@@ -255,6 +258,15 @@ TEST_CASE("solutions with the Wisdom-Holman model agree with the adaptive model'
         MESSAGE(std::string(name) << ": prediction moved " << sep << "\" (1-sigma minor axis " << p.semi_minor_arcsec
                                   << "\"), mass by " << mass_shift << " sigma, distance by " << distance_shift
                                   << " sigma; chi2 " << ref.chi2 << " vs " << fast.chi2);
+        CHECK(ref.detection.detected() == fast.detection.detected());
+        if (!ref.detection.detected()) {
+            // A record that does not demand a hidden body (hard, seed 1: mass 3e-8 +- 4e-8) has no determined
+            // minimum, only a valley flat to a small fraction of one in chi2, along which the two optimisers
+            // stop at different places (here predictions 1.5 deg apart, distances 0.2 sigma). What must agree
+            // is the fit: chi2 to well under 1, i.e. statistically the same.
+            CHECK(std::abs(ref.chi2 - fast.chi2) < 0.5);
+            continue;
+        }
         CHECK(sep < 0.1 * p.semi_minor_arcsec);
         CHECK(mass_shift < 0.1);
         CHECK(distance_shift < 0.1);

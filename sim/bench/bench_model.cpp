@@ -6,6 +6,7 @@
 #include <cstdint>
 #include <cstdio>
 #include <string>
+#include <utility>
 
 #include <benchmark/benchmark.h>
 
@@ -14,6 +15,8 @@
 #include "sim/base/units.hpp"
 #include "sim/model/model.hpp"
 #include "sim/model/wisdom_holman.hpp"
+#include "sim/fit/least_squares.hpp"
+#include "sim/predict/predict.hpp"
 #include "sim/solve/solve.hpp"
 
 namespace wayward::bench {
@@ -95,11 +98,63 @@ void bm_model_step(benchmark::State& state, const std::string& integrator) {
     state.counters["steps"] = Counter(steps, Counter::kAvgIterations);
 }
 
-void bm_model_solve(benchmark::State& state, const std::string& scenario, const std::string& integrator) {
+// One Jacobian of the weighted residuals with respect to every parameter of the solve (planets and an eccentric,
+// tilted hidden body): the map's tangent map (one run) against forward differences (one run per parameter and
+// the run at the point), both with the Wisdom-Holman model.
+void bm_model_jacobian(benchmark::State& state, const std::string& scenario, const std::string& derivatives) {
+    const Exercise& ex = exercise_for(scenario, seed).exercise;
+    const ModelSetup setup = make_setup(ex);
+    FittedModel fit;
+    fit.reference = initial_state(setup);
+    fit.layout = HiddenParameters::make(setup.planets.size(), true, true, true);
+    fit.layout.gm_star = setup.known.gm[0];
+    Eigen::VectorXd x = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(fit.layout.size()));
+    const HiddenOrbit h = trial_hidden(fit.reference);
+    x[fit.layout.i_logm] = std::log(h.mass);
+    x[fit.layout.i_a] = std::log(h.semi_major_axis);
+    x[fit.layout.i_lon] = h.mean_longitude;
+    x[fit.layout.i_k] = 0.05;
+    x[fit.layout.i_ix] = 0.02;
+    const StateOf state_of = [&](const Eigen::VectorXd& v) { return fit.state(setup, v); };
+    LeastSquaresProblem p;
+    p.parameters = fit.layout.size();
+    p.residuals = 2 * setup.obs.size();
+    p.step = fit.layout.steps();
+    p.evaluate = [&](const Eigen::VectorXd& v, Eigen::VectorXd& r) { return weighted_residuals(setup, run_model(setup, state_of(v), setup.t_end), r); };
+    if (derivatives == "variational") {
+        std::vector<Eigen::Index> all(p.parameters);
+        for (std::size_t j = 0; j < p.parameters; ++j) all[j] = static_cast<Eigen::Index>(j);
+        p.jacobian = [&, all](const Eigen::VectorXd& v, Eigen::MatrixXd& jac) {
+            return weighted_residual_jacobian(setup, run_model_tangent(setup, state_of, v, all, fit.layout.seed_steps(), setup.t_end), jac);
+        };
+    }
+    int runs = 0;
+    for (auto _ : state) {
+        Eigen::VectorXd r;
+        Eigen::MatrixXd J;
+        runs = 1;
+        // Forward differences need the residuals at the point; the tangent run does not.
+        if (!p.jacobian && !p.evaluate(x, r)) {
+            state.SkipWithError("forward model failed");
+            break;
+        }
+        if (p.jacobian) r.resize(static_cast<Eigen::Index>(p.residuals));
+        if (!problem_jacobian(p, x, r, J, runs)) {
+            state.SkipWithError("Jacobian failed");
+            break;
+        }
+        benchmark::DoNotOptimize(J.data());
+    }
+    state.counters["parameters"] = benchmark::Counter(static_cast<double>(p.parameters));
+    state.counters["model_runs"] = benchmark::Counter(static_cast<double>(p.jacobian ? 1 : runs));
+}
+
+void bm_model_solve(benchmark::State& state, const std::string& scenario, const std::string& integrator, const std::string& derivatives) {
     const Exercise& ex = exercise_for(scenario, seed).exercise;
     SolveOptions opt;
     opt.threads = 1;
     opt.model.integrator = integrator;
+    opt.model.derivatives = derivatives;
     const Solution sol = timed_solve(state, ex, opt);
     char label[200];
     std::snprintf(label, sizeof label, "chi2 %.6g, a %.4f au, mass %.4e, lambda %.6f rad", sol.chi2, sol.best.semi_major_axis,
@@ -124,9 +179,17 @@ void register_model_benchmarks() {
             ->DenseRange(2, 6)
             ->Unit(benchmark::kMillisecond);
     for (const char* name : bundled_scenarios)
-        for (const ModelIntegrator& m : model_integrators())
-            benchmark::RegisterBenchmark(("model_solve/" + std::string(name) + "/" + m.name).c_str(), bm_model_solve,
-                                         std::string(name), m.name)
+        for (const char* d : {"variational", "differences"})
+            benchmark::RegisterBenchmark(("model_jacobian/" + std::string(name) + "/" + d).c_str(), bm_model_jacobian, std::string(name),
+                                         std::string(d))
+                ->MeasureProcessCPUTime()
+                ->Unit(benchmark::kMillisecond);
+    // The reference (adaptive model, differences), the map with differences, and the map with its tangent map.
+    const std::pair<const char*, const char*> kinds[] = {{"adaptive", "differences"}, {"wisdom-holman", "differences"}, {"wisdom-holman", "variational"}};
+    for (const char* name : bundled_scenarios)
+        for (const auto& [integrator, derivatives] : kinds)
+            benchmark::RegisterBenchmark(("model_solve/" + std::string(name) + "/" + integrator + "/" + derivatives).c_str(), bm_model_solve,
+                                         std::string(name), std::string(integrator), std::string(derivatives))
                 ->Iterations(1)
                 ->MeasureProcessCPUTime()
                 ->Unit(benchmark::kSecond);

@@ -77,6 +77,8 @@ Command add_solve(CLI::App& app) {
     c->add_flag("--quiet", sv.quiet, "no progress output");
     c->add_flag("--neglect-light-time", sv.neglect_light_time, "leave light time out of the model");
     c->add_flag("--point-anyway", sv.point_anyway, "write the best solution's pointing even when the record does not demand a hidden body");
+    c->add_option("--fitting-model", sv.fitting_model, "the fitting model's integrator: wisdom-holman (fast) or adaptive (the reference)")->capture_default_str();
+    c->add_option("--derivatives", sv.derivatives, "fit Jacobians: variational (the map's tangent map, one run) or differences (a run per parameter)")->capture_default_str();
     c->add_option("--out", sv.out_file, "solution file to write (default EXERCISE/solution.toml)");
     c->add_flag("--sky-map", sv.sky_map, "also write the prediction's probability map (DIR/skymap.fits, HEALPix) and its 50/90/99 % regions (DIR/skymap_regions.csv)");
     return {c, [args] { return run_solve(*args, std::cout, std::cerr); }};

@@ -217,6 +217,16 @@ SolveOptions solve_options(const SolveArgs& a) {
     o.starts = a.starts;
     o.threads = a.threads;
     if (a.neglect_light_time) o.model.light_time = LightTime::neglected;
+    if (!is_model_integrator(a.fitting_model)) {
+        std::string names;
+        for (const ModelIntegrator& m : model_integrators()) names += (names.empty() ? "" : ", ") + m.name;
+        throw InputError("", 0, "--fitting-model", "unknown fitting model '" + a.fitting_model + "' (one of: " + names + ")");
+    }
+    if (a.derivatives != "variational" && a.derivatives != "differences")
+        throw InputError("", 0, "--derivatives", "must be variational or differences, not '" + a.derivatives + "'");
+    o.model.integrator = a.fitting_model;
+    // The adaptive reference model has no tangent map: its fits always take differences.
+    o.model.derivatives = a.fitting_model == "wisdom-holman" ? a.derivatives : "differences";
     try {
         set_distance_prior(o, a.distance);  // validates every option
     } catch (const InputError& e) {
@@ -293,6 +303,10 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
         << " deg (from north, +β, through east, +λ)\n";
     out << "  1-sigma ellipse (" << p.samples_used << " samples): " << p.sampled_semi_major_arcsec / 60 << " x "
         << p.sampled_semi_minor_arcsec / 60 << " arcmin; 90% of samples within " << p.radius90_arcsec / 60 << " arcmin\n";
+    if (p.samples_in_full < p.samples_used)
+        out << "  (" << p.samples_in_full << " samples run through the model lay within " << std::setprecision(1)
+            << 100.0 * p.pilot_departure << std::setprecision(3) << "% of the minor axis of their linear propagation; the other "
+            << p.samples_used - p.samples_in_full << " were propagated linearly)\n";
     out << "  search field radius: " << ex.brief.field_radius_deg * 60 << " arcmin\n";
     out << std::defaultfloat;
     if (const std::string c = near_star_caution(near_star(ex.brief, p), p.epoch_year); !c.empty()) out << c << "\n";

@@ -55,6 +55,8 @@ struct SolveArgs {
     bool quiet = false;
     bool neglect_light_time = false;
     bool point_anyway = false;    // write the pointing even when the record does not demand a hidden body
+    std::string fitting_model = "wisdom-holman";  // a name of model_integrators()
+    std::string derivatives = "variational";      // variational or differences
     std::string out_file;  // where solution.toml goes (default: EXERCISE/solution.toml)
     bool sky_map = false;  // also write DIR/skymap.fits and DIR/skymap_regions.csv
 };

@@ -149,11 +149,24 @@ KnownFit fit_known(const Exercise& ex, const ModelOptions& options, const std::f
     prob.parameters = 6 * setup.planets.size();
     prob.residuals = 2 * setup.obs.size();
     prob.step = Eigen::VectorXd::Ones(static_cast<Eigen::Index>(prob.parameters));
-    prob.evaluate = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
+    const StateOf state_of = [&](const Eigen::VectorXd& x) {
         ModelState s = reference;
         unpack_planets(setup, reference, x, s);
-        return weighted_residuals(setup, run_model(setup, s, setup.t_end), r);
+        return s;
     };
+    prob.evaluate = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
+        ++fit.model_runs;
+        return weighted_residuals(setup, run_model(setup, state_of(x), setup.t_end), r);
+    };
+    if (has_tangent_map(setup, prob.parameters)) {
+        // The planets' map to the state is linear: the seed's differences are exact with any step.
+        std::vector<Eigen::Index> columns(prob.parameters);
+        for (std::size_t j = 0; j < prob.parameters; ++j) columns[j] = static_cast<Eigen::Index>(j);
+        prob.jacobian = [&, columns](const Eigen::VectorXd& x, Eigen::MatrixXd& jac) {
+            ++fit.model_runs;
+            return weighted_residual_jacobian(setup, run_model_tangent(setup, state_of, x, columns, prob.step, setup.t_end), jac);
+        };
+    }
     Eigen::VectorXd x = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(prob.parameters));
     LeastSquaresResult lm;
     for (int round = 0; round < 8; ++round) {
@@ -161,12 +174,14 @@ KnownFit fit_known(const Exercise& ex, const ModelOptions& options, const std::f
         if (!lm.evaluated || !std::isfinite(lm.chi2)) throw std::runtime_error("the known-bodies model could not be evaluated");
         x = lm.x;
         unpack_planets(setup, reference, x, fit.state);
+        ++fit.model_runs;
         const ModelRun run = run_model(setup, fit.state, setup.t_end);
         const bool changed = update_weights(setup, residuals_arcsec(setup, run));
         if (progress) progress("known-bodies fit, round " + std::to_string(round + 1) + ": chi2 = " + std::to_string(lm.chi2));
         if (!changed) break;
     }
     // Final residuals and chi2 with the final weights.
+    ++fit.model_runs;
     fit.run = run_model(setup, fit.state, setup.t_end);
     fit.residuals = residuals_arcsec(setup, fit.run);
     Eigen::VectorXd r;
@@ -175,7 +190,7 @@ KnownFit fit_known(const Exercise& ex, const ModelOptions& options, const std::f
     for (const FitObservation& f : setup.obs) (f.rejected ? fit.rejected : fit.kept) += 1;
     fit.dof = 2 * fit.kept > prob.parameters ? 2 * fit.kept - prob.parameters : 1;
     int evals = 0;
-    finite_difference_jacobian(prob, x, r, fit.jacobian, evals);
+    problem_jacobian(prob, x, r, fit.jacobian, evals);
     return fit;
 }
 

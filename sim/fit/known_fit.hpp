@@ -29,6 +29,7 @@ struct KnownFit {
     std::size_t kept = 0, rejected = 0;
     Eigen::MatrixXd jacobian;            // weighted, of the known parameters (6 per observed planet)
     std::vector<std::array<double, 2>> residuals;  // arcsec per observation
+    int model_runs = 0;                  // forward-model runs of the fit (tangent runs counted once each)
 };
 
 // Parameter vector <-> model state for the observed planets' initial states (scaled units).

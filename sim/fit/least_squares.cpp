@@ -1,4 +1,4 @@
-// Levenberg-Marquardt with forward-difference Jacobians. See least_squares.hpp.
+// Levenberg-Marquardt with the problem's own or forward-difference Jacobians. See least_squares.hpp.
 #include "sim/fit/least_squares.hpp"
 
 #include <algorithm>
@@ -28,6 +28,13 @@ bool finite_difference_jacobian(const LeastSquaresProblem& p, const Eigen::Vecto
     return true;
 }
 
+bool problem_jacobian(const LeastSquaresProblem& p, const Eigen::VectorXd& x, const Eigen::VectorXd& r0, Eigen::MatrixXd& jac,
+                      int& evaluations) {
+    if (!p.jacobian) return finite_difference_jacobian(p, x, r0, jac, evaluations);
+    ++evaluations;
+    return p.jacobian(x, jac) && jac.rows() == r0.size() && jac.cols() == static_cast<Eigen::Index>(p.parameters) && jac.allFinite();
+}
+
 LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen::VectorXd& x0, int max_iterations,
                                        const std::function<bool()>& cancelled) {
     LeastSquaresResult res;
@@ -38,7 +45,7 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen
     res.chi2 = r.squaredNorm();
     res.evaluated = true;
     Eigen::MatrixXd J;
-    if (!finite_difference_jacobian(p, res.x, r, J, res.evaluations)) return res;
+    if (!problem_jacobian(p, res.x, r, J, res.evaluations)) return res;
     res.outcome = FitOutcome::iteration_limit;
     // Steps solve the damped problem [J; sqrt(lambda D)] delta = [-r; 0] by column-pivoted QR rather than by
     // the normal equations, whose condition number is the square of J's (long arcs make J ill-conditioned).
@@ -91,7 +98,7 @@ LeastSquaresResult levenberg_marquardt(const LeastSquaresProblem& p, const Eigen
             double step_size = 0.0;
             for (Eigen::Index j = 0; j < n; ++j) step_size = std::max(step_size, std::abs(delta[j] / p.step[j]));
             const bool small = gain < 1e-7 * res.chi2 + 1e-10 || step_size < 1e-3;
-            if (!finite_difference_jacobian(p, res.x, r, J, res.evaluations)) {
+            if (!problem_jacobian(p, res.x, r, J, res.evaluations)) {
                 res.outcome = FitOutcome::model_failed;
                 break;
             }

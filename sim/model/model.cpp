@@ -46,6 +46,8 @@ Vec3 ModelSetup::observer_helio_at(double t) const { return inner.position(obser
 ModelSetup make_setup(const Exercise& ex, const ModelOptions& options) {
     if (!is_model_integrator(options.integrator))
         throw std::invalid_argument("unknown fitting-model integrator '" + options.integrator + "'");
+    if (options.derivatives != "variational" && options.derivatives != "differences")
+        throw std::invalid_argument("unknown kind of derivatives '" + options.derivatives + "' (variational or differences)");
     ModelSetup s;
     s.brief = ex.brief;
     s.options = options;
@@ -127,14 +129,19 @@ ModelState initial_state(const ModelSetup& setup) {
     return st;
 }
 
-ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_end, std::optional<double> t_begin) {
-    ModelRun run;
+namespace {
+
+// The fitting model's system at epoch 0 for a state: the central pair, the other known planets, the hidden body.
+// Sets run.planet_index and run.hidden_index; false (with run.outcome set) for a hidden body out of range.
+bool model_system(const ModelSetup& setup, const ModelState& state, ModelRun& run, System& sys) {
     const double gm_star = setup.known.gm[0], gm_obs = setup.known.gm[setup.observer];
     const double share = gm_obs / (gm_star + gm_obs);
     const StateVector obs0 = heliocentric(setup.known, setup.observer);
     const StateVector pair{share * obs0.position, share * obs0.velocity};  // pair barycentre relative to the star
 
-    System sys;
+    sys = System{};
+    run.planet_index.clear();
+    run.hidden_index.reset();
     sys.bodies.push_back({"pair", Role::star, false});
     sys.gm.push_back(gm_star + gm_obs);
     std::vector<StateVector> rel{StateVector{}};
@@ -143,27 +150,22 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
         const auto it = std::find(setup.planets.begin(), setup.planets.end(), i);
         const StateVector helio = it != setup.planets.end() ? state.planets[static_cast<std::size_t>(it - setup.planets.begin())]
                                                             : heliocentric(setup.known, i);
-        if (it != setup.planets.end()) run.planet_index.push_back(sys.size());
         sys.bodies.push_back(setup.known.bodies[i]);
         sys.gm.push_back(setup.known.gm[i]);
         rel.push_back({helio.position - pair.position, helio.velocity - pair.velocity});
     }
-    // planet_index must follow setup.planets' order.
-    {
-        std::vector<std::size_t> ordered;
-        for (std::size_t body : setup.planets) {
-            std::size_t k = 0;
-            for (std::size_t i = 1; i < sys.size(); ++i)
-                if (sys.bodies[i].name == setup.known.bodies[body].name) k = i;
-            ordered.push_back(k);
-        }
-        run.planet_index = ordered;
+    // planet_index follows setup.planets' order.
+    for (std::size_t body : setup.planets) {
+        std::size_t k = 0;
+        for (std::size_t i = 1; i < sys.size(); ++i)
+            if (sys.bodies[i].name == setup.known.bodies[body].name) k = i;
+        run.planet_index.push_back(k);
     }
     if (state.hidden) {
         const HiddenOrbit& h = *state.hidden;
         if (!(h.mass > 0.0) || !(h.semi_major_axis > 0.0) || !(std::hypot(h.k, h.h) < 0.95) || !std::isfinite(h.mean_longitude)) {
             run.outcome = ModelOutcome::parameters_out_of_range;
-            return run;
+            return false;
         }
         const double gm_h = gm_from_mass(h.mass);
         const StateVector in_frame = elements_to_state(h.elements(), gm_star + gm_h);
@@ -177,18 +179,38 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     const auto bary = helio_to_bary(sys.gm, rel);
     sys.state.assign(6 * sys.size(), 0.0);
     for (std::size_t i = 0; i < bary.size(); ++i) sys.set(i, bary[i]);
+    return true;
+}
+
+WisdomHolmanOptions map_options(const ModelSetup& setup) {
+    WisdomHolmanOptions wo;
+    wo.central_quadrupole = setup.pair_quadrupole;
+    return wo;
+}
+
+bool take_map_result(WisdomHolmanResult& r, ModelRun& run) {
+    if (r.outcome != WisdomHolmanOutcome::ok) {
+        run.outcome = ModelOutcome::map_failed;
+        run.map = r.outcome;
+        return false;
+    }
+    run.outer = std::move(r.ephemeris);
+    run.tangent_parameters = r.tangent_parameters;
+    run.tangents = std::move(r.tangents);
+    run.outcome = ModelOutcome::ok;
+    return true;
+}
+
+}  // namespace
+
+ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_end, std::optional<double> t_begin) {
+    ModelRun run;
+    System sys;
+    if (!model_system(setup, state, run, sys)) return run;
     const double t0 = t_begin.value_or(setup.t_begin);
     if (setup.options.integrator == "wisdom-holman") {
-        WisdomHolmanOptions wo;
-        wo.central_quadrupole = setup.pair_quadrupole;
-        WisdomHolmanResult r = integrate_wisdom_holman(sys, t0, std::max(t_end, t0), wo);
-        if (r.outcome != WisdomHolmanOutcome::ok) {
-            run.outcome = ModelOutcome::map_failed;
-            run.map = r.outcome;
-            return run;
-        }
-        run.outer = std::move(r.ephemeris);
-        run.outcome = ModelOutcome::ok;
+        WisdomHolmanResult r = integrate_wisdom_holman(sys, t0, std::max(t_end, t0), map_options(setup));
+        take_map_result(r, run);
         return run;
     }
     IntegratorOptions io;
@@ -205,6 +227,46 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     }
     run.outer = std::move(r.ephemeris);
     run.outcome = ModelOutcome::ok;
+    return run;
+}
+
+bool has_tangent_map(const ModelSetup& setup, std::size_t parameters) {
+    return setup.options.integrator == "wisdom-holman" && setup.options.derivatives == "variational" && parameters > 0 &&
+           parameters <= max_tangent_parameters;
+}
+
+ModelRun run_model_tangent(const ModelSetup& setup, const StateOf& state_of, const Eigen::VectorXd& x,
+                           const std::vector<Eigen::Index>& columns, const Eigen::VectorXd& seed_steps, double t_end,
+                           std::optional<double> t_begin) {
+    if (!has_tangent_map(setup, columns.size()))
+        throw std::invalid_argument("run_model_tangent: the fitting model has no tangent map for this run");
+    ModelRun run;
+    System sys;
+    if (!model_system(setup, state_of(x), run, sys)) return run;
+    // The seed: derivatives of the initial state and the GMs, by central differences of the closed-form map
+    // from parameters to state (elements to Cartesian, heliocentric to barycentric; no integration). Its steps
+    // (seed_steps) are small enough that the truncation error, h^2/6 of the third derivative, is ~1e-10.
+    const std::size_t p = columns.size(), n = sys.size();
+    TangentSeed seed;
+    seed.parameters = p;
+    seed.state.assign(6 * n * p, 0.0);
+    seed.gm.assign(n * p, 0.0);
+    for (std::size_t q = 0; q < p; ++q) {
+        const Eigen::Index j = columns[q];
+        const double h = seed_steps[j];
+        System lo, hi;
+        ModelRun scratch;
+        Eigen::VectorXd xp = x;
+        xp[j] = x[j] + h;
+        if (!model_system(setup, state_of(xp), scratch, hi)) return scratch;
+        xp[j] = x[j] - h;
+        if (!model_system(setup, state_of(xp), scratch, lo)) return scratch;
+        for (std::size_t i = 0; i < 6 * n; ++i) seed.state[i * p + q] = (hi.state[i] - lo.state[i]) / (2.0 * h);
+        for (std::size_t i = 0; i < n; ++i) seed.gm[i * p + q] = (hi.gm[i] - lo.gm[i]) / (2.0 * h);
+    }
+    const double t0 = t_begin.value_or(setup.t_begin);
+    WisdomHolmanResult r = integrate_wisdom_holman(sys, t0, std::max(t_end, t0), map_options(setup), seed);
+    take_map_result(r, run);
     return run;
 }
 
@@ -228,7 +290,86 @@ SkyPosition apparent_from(const ModelSetup& setup, const ModelRun& run, std::siz
                                                                        : Vec3(run.outer.position(index, t) - observer);
     return to_sky(setup.frame.to_frame(rel));
 }
+
+// d(position of `body` at t)/d(parameters), 3 x P, by quintic Hermite interpolation of the nodes' position,
+// velocity and acceleration tangents (error ~ (2 pi h / P)^6 / 46080 of the tangent for nodes h apart on an
+// orbit of period P: ~1e-7 at the map's node spacing of 1/16 of the shortest period).
+Eigen::MatrixXd position_tangent(const ModelRun& run, std::size_t body, double t) {
+    const Ephemeris& e = run.outer;
+    const std::size_t n = e.size(), p = run.tangent_parameters, rows = tangent_rows_per_body;
+    auto it = std::upper_bound(e.times.begin(), e.times.end(), t);
+    std::size_t k1 = static_cast<std::size_t>(it - e.times.begin());
+    if (k1 >= e.times.size()) k1 = e.times.size() - 1;
+    if (k1 == 0) k1 = 1;
+    const std::size_t k0 = k1 - 1;
+    const double h = e.times[k1] - e.times[k0], s = (t - e.times[k0]) / h;
+    const double s2 = s * s, s3 = s2 * s, s4 = s3 * s, s5 = s4 * s;
+    // The quintic Hermite basis: values, first and second derivatives at both ends.
+    const double w[6] = {1.0 - 10.0 * s3 + 15.0 * s4 - 6.0 * s5,
+                         h * (s - 6.0 * s3 + 8.0 * s4 - 3.0 * s5),
+                         h * h * 0.5 * (s2 - 3.0 * s3 + 3.0 * s4 - s5),
+                         10.0 * s3 - 15.0 * s4 + 6.0 * s5,
+                         h * (-4.0 * s3 + 7.0 * s4 - 3.0 * s5),
+                         h * h * 0.5 * (s3 - 2.0 * s4 + s5)};
+    Eigen::MatrixXd d(3, static_cast<Eigen::Index>(p));
+    const double* t0 = &run.tangents[(rows * n * k0 + rows * body) * p];
+    const double* t1 = &run.tangents[(rows * n * k1 + rows * body) * p];
+    for (std::size_t c = 0; c < 3; ++c)
+        for (std::size_t q = 0; q < p; ++q)
+            d(static_cast<Eigen::Index>(c), static_cast<Eigen::Index>(q)) =
+                w[0] * t0[c * p + q] + w[1] * t0[(c + 3) * p + q] + w[2] * t0[(c + 6) * p + q] +
+                w[3] * t1[c * p + q] + w[4] * t1[(c + 3) * p + q] + w[5] * t1[(c + 6) * p + q];
+    return d;
+}
 }  // namespace
+
+SkyTangent apparent_tangent(const ModelSetup& setup, const ModelRun& run, std::size_t index, double t, const Vec3& observer_helio) {
+    if (run.tangent_parameters == 0) throw std::invalid_argument("apparent_tangent: the model run has no tangents");
+    const double gm_star = setup.known.gm[0], gm_obs = setup.known.gm[setup.observer];
+    const double star_share = gm_star / (gm_star + gm_obs);
+    const Vec3 observer = run.outer.position(0, t) + star_share * observer_helio;
+    // rel = x_target(t - tau) - x_pair(t) - const, tau = |rel| / c. Differentiating:
+    // d rel = A - v_target (u . d rel) / c with A = T_target(t - tau) - T_pair(t), u = rel / |rel|, so
+    // d rel = A - v (u^T A) / (c + u . v) (Sherman-Morrison).
+    Vec3 rel;
+    Eigen::MatrixXd A;
+    if (setup.options.light_time == LightTime::corrected) {
+        const LightTimeSolution l = solve_light_time(run.outer, index, t, observer);
+        rel = l.relative;
+        const double t_emit = std::max(t - l.tau_days, run.outer.t_begin());
+        A = position_tangent(run, index, t_emit) - position_tangent(run, 0, t);
+        const Vec3 v = run.outer.state(index, t_emit).velocity, u = rel.normalized();
+        A -= v * ((u.transpose() * A) / (c_au_per_day + u.dot(v)));
+    } else {
+        rel = run.outer.position(index, t) - observer;
+        A = position_tangent(run, index, t) - position_tangent(run, 0, t);
+    }
+    const Vec3 w = setup.frame.to_frame(rel);
+    const Eigen::MatrixXd dw = setup.frame.rotation * A;
+    SkyTangent out;
+    out.at = to_sky(w);
+    // lon = atan2(y, x), lat = atan2(z, rho), rho = hypot(x, y).
+    const double rho2 = w.x() * w.x() + w.y() * w.y(), rho = std::sqrt(rho2), r2 = rho2 + w.z() * w.z();
+    out.d_lon = (w.x() * dw.row(1) - w.y() * dw.row(0)) / rho2;
+    out.d_lat = (rho2 * dw.row(2) - w.z() * (w.x() * dw.row(0) + w.y() * dw.row(1))) / (r2 * rho);
+    return out;
+}
+
+bool weighted_residual_jacobian(const ModelSetup& setup, const ModelRun& run, Eigen::MatrixXd& jac) {
+    if (!run.ok() || run.tangent_parameters == 0) return false;
+    jac = Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(2 * setup.obs.size()), static_cast<Eigen::Index>(run.tangent_parameters));
+    for (std::size_t k = 0; k < setup.obs.size(); ++k) {
+        const FitObservation& f = setup.obs[k];
+        if (f.rejected) continue;
+        const SkyTangent d = apparent_tangent(setup, run, run.planet_index[f.planet], f.time_days, setup.observer_helio[k]);
+        const auto e = static_cast<Eigen::Index>(2 * k);
+        // r_lon = wrap(O - lon) cos(lat) / (arcsec sigma), r_lat = (O - lat) / (arcsec sigma).
+        const double dl = wrap_pi(f.lon - d.at.lon);
+        jac.row(e) = -(std::cos(d.at.lat) * d.d_lon + dl * std::sin(d.at.lat) * d.d_lat) / (arcsec * f.sigma_lon_arcsec);
+        jac.row(e + 1) = -d.d_lat / (arcsec * f.sigma_lat_arcsec);
+    }
+    return jac.allFinite();
+}
 
 SkyPosition model_apparent(const ModelSetup& setup, const ModelRun& run, std::size_t index, double t) {
     return apparent_from(setup, run, index, t, setup.observer_helio_at(t));

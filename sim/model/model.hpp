@@ -9,6 +9,7 @@
 
 #include <array>
 #include <cstddef>
+#include <functional>
 #include <optional>
 #include <string>
 #include <vector>
@@ -45,6 +46,9 @@ struct ModelOptions {
     LightTime light_time = LightTime::corrected;
     double rel_tol = 1e-12;            // the adaptive integrator's tolerance
     std::string integrator = "wisdom-holman";  // a name from model_integrators(); "adaptive" is the reference
+    // How fits get their Jacobians: "variational" (the map's tangent map, one run for all parameters; the
+    // Wisdom-Holman model only) or "differences" (forward differences, one run per parameter; any model).
+    std::string derivatives = "variational";
 };
 
 // The fitting model's integrators, selectable by name (ModelOptions::integrator).
@@ -93,9 +97,31 @@ struct ModelRun {
     Ephemeris outer;                     // central pair + observed planets (+ hidden), barycentric
     std::vector<std::size_t> planet_index;  // index in `outer` of each observed planet
     std::optional<std::size_t> hidden_index;
+    // From run_model_tangent: d(state)/d(parameter) at every node of `outer` (see WisdomHolmanResult::tangents).
+    std::size_t tangent_parameters = 0;
+    std::vector<double> tangents;
 };
 // Integrates over [t_begin, t_end]; t_begin defaults to the setup's (the first observation, or epoch 0).
 ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_end, std::optional<double> t_begin = std::nullopt);
+
+// ---- Derivatives from the variational equations of the map (its tangent map) ----
+using StateOf = std::function<ModelState(const Eigen::VectorXd&)>;
+// True when the setup's model gives derivatives by its tangent map for this many parameters.
+bool has_tangent_map(const ModelSetup& setup, std::size_t parameters);
+// run_model for the state state_of(x), with the derivatives of every node with respect to x[columns] (at most
+// max_tangent_parameters). seed_steps[j]: the step of the central differences that carry x's change into the
+// initial state (a closed-form map, no integration; it must be small against x's scale: 1e-5 of a radian).
+ModelRun run_model_tangent(const ModelSetup& setup, const StateOf& state_of, const Eigen::VectorXd& x,
+                           const std::vector<Eigen::Index>& columns, const Eigen::VectorXd& seed_steps, double t_end,
+                           std::optional<double> t_begin = std::nullopt);
+// The apparent position of body `index` at t and its derivatives (radians per parameter unit).
+struct SkyTangent {
+    SkyPosition at;
+    Eigen::RowVectorXd d_lon, d_lat;
+};
+SkyTangent apparent_tangent(const ModelSetup& setup, const ModelRun& run, std::size_t index, double t, const Vec3& observer_helio);
+// d(weighted residuals)/d(parameters) of a tangent run: 2 rows per observation (zeros where rejected).
+bool weighted_residual_jacobian(const ModelSetup& setup, const ModelRun& run, Eigen::MatrixXd& jac);
 
 // Apparent position (lon, lat, radians) of body `index` of the model run at time t, seen from the observer.
 SkyPosition model_apparent(const ModelSetup& setup, const ModelRun& run, std::size_t index, double t);

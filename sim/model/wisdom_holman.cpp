@@ -10,6 +10,10 @@
 // of that error up to O(eps h^4) (corrector order 3) or O(eps h^6) (order 5) is a near-identity change of
 // variables: integrating y = C^-1(x) and reporting C(y) leaves O(eps h^{n+1} + eps^2 h^2) (Wisdom, Holman &
 // Touma 1996; their C is a product of stages Z(a, b) = D(a) K(-b) D(-2a) K(b) D(a)).
+// The same code, run on Dual<N> (dual.hpp), is the map's tangent map: the derivatives of every node with respect
+// to the initial state and the masses, exact for the discrete map (the step and the Jacobi order are held fixed).
+// The Kepler drift iterates on values only and then takes one Newton step in Dual arithmetic at the converged
+// root, which carries the implicit-function derivative ds/dp = -(dF/dp) / (dF/ds) of the universal anomaly.
 // Hand-written rather than taken from a library: no Debian package provides a Wisdom-Holman map.
 #include "sim/model/wisdom_holman.hpp"
 
@@ -17,6 +21,10 @@
 #include <array>
 #include <cmath>
 #include <numeric>
+#include <stdexcept>
+#include <type_traits>
+
+#include "sim/model/dual.hpp"
 
 namespace wayward {
 
@@ -32,11 +40,14 @@ std::string to_string(WisdomHolmanOutcome outcome) {
 
 namespace {
 
+using std::sqrt;  // the double overload beside Dual's (dual.hpp), for the code written for both
+
 // Stumpff functions c0..c3 of z (Danby 1988, 6.9): series for |z| <= 0.1, then z is brought back by the
 // quadrupling identities c0(4z) = 2 c0^2 - 1, c1(4z) = c0 c1, c2(4z) = c1^2 / 2, c3(4z) = (c2 + c0 c3) / 4.
-void stumpff(double z, std::array<double, 4>& c) {
+template <class T>
+void stumpff(T z, std::array<T, 4>& c) {
     int quarterings = 0;
-    while (std::abs(z) > 0.1 && quarterings < 200) {
+    while (std::abs(value(z)) > 0.1 && quarterings < 200) {
         z *= 0.25;
         ++quarterings;
     }
@@ -45,14 +56,14 @@ void stumpff(double z, std::array<double, 4>& c) {
                                        1.0 / 87178291200.0, 1.0 / 20922789888000.0};
     static constexpr double inv3[8] = {1.0 / 6, 1.0 / 120, 1.0 / 5040, 1.0 / 362880, 1.0 / 39916800, 1.0 / 6227020800.0,
                                        1.0 / 1307674368000.0, 1.0 / 355687428096000.0};
-    double c2 = 0.0, c3 = 0.0;
+    T c2 = 0.0, c3 = 0.0;
     for (int k = 7; k >= 0; --k) {
         c2 = inv2[k] - z * c2;
         c3 = inv3[k] - z * c3;
     }
-    double c1 = 1.0 - z * c3, c0 = 1.0 - z * c2;
+    T c1 = 1.0 - z * c3, c0 = 1.0 - z * c2;
     for (int i = 0; i < quarterings; ++i) {
-        const double n3 = 0.25 * (c2 + c0 * c3), n2 = 0.5 * c1 * c1, n1 = c0 * c1, n0 = 2.0 * c0 * c0 - 1.0;
+        const T n3 = 0.25 * (c2 + c0 * c3), n2 = 0.5 * c1 * c1, n1 = c0 * c1, n0 = 2.0 * c0 * c0 - 1.0;
         c0 = n0;
         c1 = n1;
         c2 = n2;
@@ -61,20 +72,15 @@ void stumpff(double z, std::array<double, 4>& c) {
     c = {c0, c1, c2, c3};
 }
 
-}  // namespace
-
-bool kepler_drift(double mu, double dt, Vec3& position, Vec3& velocity) {
-    const double r0 = position.norm();
-    if (!(r0 > 0.0) || !std::isfinite(dt)) return false;
-    const double eta0 = position.dot(velocity);
-    const double beta = 2.0 * mu / r0 - velocity.squaredNorm();  // mu / a
-    // Universal Kepler equation F(s) = r0 G1 + eta0 G2 + mu G3 - dt = 0 with G_k = s^k c_k(beta s^2); F' = r > 0.
+// The root s of the universal Kepler equation F(s) = r0 G1 + eta0 G2 + mu G3 - dt = 0 (G_k = s^k c_k(beta s^2),
+// F' = r > 0). False if it did not converge.
+bool kepler_root(double mu, double dt, double r0, double eta0, double beta, double& s) {
     // Starting guess: the series of s(dt) to third order, from dt = r0 s + eta0 s^2/2 + (mu - beta r0) s^3/6 + ...
     // reverted; for a step of 1/96 of a period its error is ~1e-6 of s, so one Halley step converges. A long
     // drift (the series' terms no longer small) starts from dt / r0 and leaves the work to the iteration.
     const double u = dt / r0, p = 0.5 * eta0 / r0, q = (mu - beta * r0) / (6.0 * r0);
     const bool short_drift = std::abs(p * u) < 0.1 && std::abs(q * u * u) < 0.1;
-    double s = short_drift ? u * (1.0 + u * (-p + u * (2.0 * p * p - q))) : u;
+    s = short_drift ? u * (1.0 + u * (-p + u * (2.0 * p * p - q))) : u;
     std::array<double, 4> c{};
     double g0 = 0.0, g1 = 0.0, g2 = 0.0, g3 = 0.0, r = r0;
     auto evaluate = [&](double x) {
@@ -86,10 +92,9 @@ bool kepler_drift(double mu, double dt, Vec3& position, Vec3& velocity) {
         r = r0 * g0 + eta0 * g1 + mu * g2;
         return r0 * g1 + eta0 * g2 + mu * g3 - dt;
     };
-    bool converged = false;
     // Halley's iteration from the two-term series guess; Laguerre's (n = 5, Conway 1986) if that stalls, which
     // converges from far worse guesses.
-    for (int it = 0; it < 60 && !converged; ++it) {
+    for (int it = 0; it < 60; ++it) {
         const double f = evaluate(s);
         const double fp = r, fpp = eta0 * g0 + (mu - beta * r0) * g1;
         double ds;
@@ -104,10 +109,24 @@ bool kepler_drift(double mu, double dt, Vec3& position, Vec3& velocity) {
         s += ds;
         // Both iterations converge cubically: once a correction is below 1e-6 of s, the one after it would be
         // below 1e-18 of s, under the rounding of s itself.
-        converged = std::abs(ds) <= 1e-6 * std::abs(s) || ds == 0.0;
+        if (std::abs(ds) <= 1e-6 * std::abs(s) || ds == 0.0) return true;
     }
-    if (!converged) return false;
-    evaluate(s);
+    return false;
+}
+
+}  // namespace
+
+bool kepler_drift(double mu, double dt, Vec3& position, Vec3& velocity) {
+    const double r0 = position.norm();
+    if (!(r0 > 0.0) || !std::isfinite(dt)) return false;
+    const double eta0 = position.dot(velocity);
+    const double beta = 2.0 * mu / r0 - velocity.squaredNorm();  // mu / a
+    double s = 0.0;
+    if (!kepler_root(mu, dt, r0, eta0, beta, s)) return false;
+    std::array<double, 4> c{};
+    stumpff(beta * s * s, c);
+    const double g1 = s * c[1], g2 = s * s * c[2], g3 = s * s * s * c[3];
+    const double r = r0 * c[0] + eta0 * g1 + mu * g2;
     if (!(r > 0.0) || !std::isfinite(r)) return false;
     // f and g in difference form (f - 1, g' - 1) so that the small change is not lost against the state.
     const double f_m1 = -mu * g2 / r0, g = dt - mu * g3;
@@ -120,23 +139,56 @@ bool kepler_drift(double mu, double dt, Vec3& position, Vec3& velocity) {
 
 namespace {
 
+// The drift of one Jacobi vector (x, v: 3 each) in Dual arithmetic: the root from values, one Newton step in
+// Dual arithmetic at it (which carries the root's derivatives), then f and g as in kepler_drift.
+template <class T>
+bool kepler_drift_tangent(const T& mu, double dt, T* x, T* v) {
+    const T r0 = sqrt(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
+    const T eta0 = x[0] * v[0] + x[1] * v[1] + x[2] * v[2];
+    const T beta = 2.0 * mu / r0 - (v[0] * v[0] + v[1] * v[1] + v[2] * v[2]);
+    if (!(value(r0) > 0.0) || !std::isfinite(dt)) return false;
+    double s = 0.0;
+    if (!kepler_root(value(mu), dt, value(r0), value(eta0), value(beta), s)) return false;
+    std::array<T, 4> c{};
+    stumpff(beta * (s * s), c);
+    const T residual = r0 * (s * c[1]) + eta0 * (s * s * c[2]) + mu * (s * s * s * c[3]) - dt;
+    const double slope = value(r0 * c[0] + eta0 * (s * c[1]) + mu * (s * s * c[2]));
+    const T st = s - residual / slope;
+    stumpff(beta * (st * st), c);
+    const T g1 = st * c[1], g2 = st * st * c[2], g3 = st * st * st * c[3];
+    const T r = r0 * c[0] + eta0 * g1 + mu * g2;
+    if (!(value(r) > 0.0) || !std::isfinite(value(r))) return false;
+    const T f_m1 = -mu * g2 / r0, g = dt - mu * g3;
+    const T fdot = -mu * g1 / (r0 * r), gdot_m1 = -mu * g2 / r;
+    for (int k = 0; k < 3; ++k) {
+        const T x0 = x[k], v0 = v[k];
+        x[k] = x0 + (f_m1 * x0 + g * v0);
+        v[k] = v0 + (fdot * x0 + gdot_m1 * v0);
+    }
+    return true;
+}
+
 // The bodies in Jacobi order (central body first, then outwards by initial distance) and their GM sums.
+template <class T>
 struct Chain {
     std::size_t n = 0;
     std::vector<std::size_t> original;  // original index of each Jacobi slot
-    std::vector<double> gm;             // GM per slot
-    std::vector<double> eta;            // gm[0] + ... + gm[j]
+    std::vector<T> gm;                  // GM per slot
+    std::vector<T> eta;                 // gm[0] + ... + gm[j]
+    std::vector<T> gm_original;         // GM in the original order
     const CentralQuadrupole* quad = nullptr;
 };
 
 // Positions and velocities of every slot, 3 per body; slot 0 holds the barycentre.
+template <class T>
 struct JacobiState {
-    std::vector<double> x, v;
+    std::vector<T> x, v;
 };
 
 // Inertial (slot order) -> Jacobi, for positions, velocities or accelerations alike (the same linear map).
-void to_jacobi(const Chain& c, const double* in, double* out) {
-    double sum[3] = {c.gm[0] * in[0], c.gm[0] * in[1], c.gm[0] * in[2]};
+template <class T>
+void to_jacobi(const Chain<T>& c, const T* in, T* out) {
+    T sum[3] = {c.gm[0] * in[0], c.gm[0] * in[1], c.gm[0] * in[2]};
     for (std::size_t j = 1; j < c.n; ++j) {
         for (int k = 0; k < 3; ++k) {
             out[3 * j + k] = in[3 * j + k] - sum[k] / c.eta[j - 1];
@@ -146,8 +198,9 @@ void to_jacobi(const Chain& c, const double* in, double* out) {
     for (int k = 0; k < 3; ++k) out[k] = sum[k] / c.eta[c.n - 1];
 }
 
-void from_jacobi(const Chain& c, const double* in, double* out) {
-    double centre[3] = {in[0], in[1], in[2]};  // barycentre of slots 0..j, going down from j = n-1
+template <class T>
+void from_jacobi(const Chain<T>& c, const T* in, T* out) {
+    T centre[3] = {in[0], in[1], in[2]};  // barycentre of slots 0..j, going down from j = n-1
     for (std::size_t j = c.n; j-- > 1;) {
         for (int k = 0; k < 3; ++k) {
             centre[k] -= c.gm[j] / c.eta[j] * in[3 * j + k];
@@ -157,24 +210,46 @@ void from_jacobi(const Chain& c, const double* in, double* out) {
     for (int k = 0; k < 3; ++k) out[k] = centre[k];
 }
 
+// add_central_quadrupole (integrate.hpp) on any scalar type, positions with stride 3: the same formula, for the
+// tangent map (the double map calls the original, so that its numbers do not change).
+template <class T>
+void add_quadrupole(const CentralQuadrupole& cq, const std::vector<T>& gm, const T* pos, T* acc) {
+    const double trace = cq.q.trace();
+    for (std::size_t i = 1; i < gm.size(); ++i) {
+        const T rho[3] = {pos[3 * i] - pos[0], pos[3 * i + 1] - pos[1], pos[3 * i + 2] - pos[2]};
+        const T r2 = rho[0] * rho[0] + rho[1] * rho[1] + rho[2] * rho[2];
+        const T r = sqrt(r2), r5 = r2 * r2 * r;
+        T qr[3];
+        for (int a = 0; a < 3; ++a) qr[a] = cq.q(a, 0) * rho[0] + cq.q(a, 1) * rho[1] + cq.q(a, 2) * rho[2];
+        const T rq = (rho[0] * qr[0] + rho[1] * qr[1] + rho[2] * qr[2]) * 5.0 / (r5 * r2);
+        for (int a = 0; a < 3; ++a) {
+            const T acc_a = 1.5 * cq.gm_reduced * ((2.0 * qr[a] + trace * rho[a]) / r5 - rq * rho[a]);
+            acc[3 * i + static_cast<std::size_t>(a)] += acc_a;
+            acc[static_cast<std::size_t>(a)] -= gm[i] / gm[0] * acc_a;
+        }
+    }
+}
+
+template <class T>
 struct Scratch {
-    std::vector<double> pos, acc, accj;
+    std::vector<T> pos, acc, accj;
 };
 
 // v_j += dt * (Jacobi acceleration of H_int), j >= 1.
-void kick(const Chain& c, JacobiState& s, double dt, Scratch& w) {
+template <class T>
+void kick(const Chain<T>& c, JacobiState<T>& s, double dt, Scratch<T>& w) {
     const std::size_t n = c.n;
     w.pos.resize(3 * n);
-    w.acc.assign(3 * n, 0.0);
+    w.acc.assign(3 * n, T(0.0));
     w.accj.resize(3 * n);
     from_jacobi(c, s.x.data(), w.pos.data());
     for (std::size_t i = 0; i < n; ++i) {
         for (std::size_t j = std::max<std::size_t>(i + 1, i == 0 ? 2 : 0); j < n; ++j) {
-            const double dx = w.pos[3 * j] - w.pos[3 * i], dy = w.pos[3 * j + 1] - w.pos[3 * i + 1],
-                         dz = w.pos[3 * j + 2] - w.pos[3 * i + 2];
-            const double r2 = dx * dx + dy * dy + dz * dz;
-            const double inv3 = 1.0 / (r2 * std::sqrt(r2));
-            const double fi = c.gm[j] * inv3, fj = c.gm[i] * inv3;
+            const T dx = w.pos[3 * j] - w.pos[3 * i], dy = w.pos[3 * j + 1] - w.pos[3 * i + 1],
+                    dz = w.pos[3 * j + 2] - w.pos[3 * i + 2];
+            const T r2 = dx * dx + dy * dy + dz * dz;
+            const T inv3 = 1.0 / (r2 * sqrt(r2));
+            const T fi = c.gm[j] * inv3, fj = c.gm[i] * inv3;
             w.acc[3 * i] += fi * dx;
             w.acc[3 * i + 1] += fi * dy;
             w.acc[3 * i + 2] += fi * dz;
@@ -183,14 +258,17 @@ void kick(const Chain& c, JacobiState& s, double dt, Scratch& w) {
             w.acc[3 * j + 2] -= fj * dz;
         }
     }
-    if (c.quad) add_central_quadrupole(*c.quad, c.gm, w.pos.data(), 3, w.acc.data(), 3);
+    if (c.quad) {
+        if constexpr (std::is_same_v<T, double>) add_central_quadrupole(*c.quad, c.gm, w.pos.data(), 3, w.acc.data(), 3);
+        else add_quadrupole(*c.quad, c.gm, w.pos.data(), w.acc.data());
+    }
     to_jacobi(c, w.acc.data(), w.accj.data());
     for (std::size_t j = 1; j < n; ++j) {
-        double* a = &w.accj[3 * j];
+        T* a = &w.accj[3 * j];
         if (j >= 2) {
-            const double* x = &s.x[3 * j];
-            const double r2 = x[0] * x[0] + x[1] * x[1] + x[2] * x[2];
-            const double f = c.eta[j] / (r2 * std::sqrt(r2));
+            const T* x = &s.x[3 * j];
+            const T r2 = x[0] * x[0] + x[1] * x[1] + x[2] * x[2];
+            const T f = c.eta[j] / (r2 * sqrt(r2));
             for (int k = 0; k < 3; ++k) a[k] += f * x[k];
         }
         for (int k = 0; k < 3; ++k) s.v[3 * j + k] += dt * a[k];
@@ -198,14 +276,19 @@ void kick(const Chain& c, JacobiState& s, double dt, Scratch& w) {
 }
 
 // Every Jacobi vector on its Kepler orbit for dt; the barycentre in a straight line.
-bool drift(const Chain& c, JacobiState& s, double dt) {
+template <class T>
+bool drift(const Chain<T>& c, JacobiState<T>& s, double dt) {
     for (int k = 0; k < 3; ++k) s.x[k] += dt * s.v[k];
     for (std::size_t j = 1; j < c.n; ++j) {
-        Vec3 x(s.x[3 * j], s.x[3 * j + 1], s.x[3 * j + 2]), v(s.v[3 * j], s.v[3 * j + 1], s.v[3 * j + 2]);
-        if (!kepler_drift(c.eta[j], dt, x, v)) return false;
-        for (int k = 0; k < 3; ++k) {
-            s.x[3 * j + static_cast<std::size_t>(k)] = x[k];
-            s.v[3 * j + static_cast<std::size_t>(k)] = v[k];
+        if constexpr (std::is_same_v<T, double>) {
+            Vec3 x(s.x[3 * j], s.x[3 * j + 1], s.x[3 * j + 2]), v(s.v[3 * j], s.v[3 * j + 1], s.v[3 * j + 2]);
+            if (!kepler_drift(c.eta[j], dt, x, v)) return false;
+            for (int k = 0; k < 3; ++k) {
+                s.x[3 * j + static_cast<std::size_t>(k)] = x[k];
+                s.v[3 * j + static_cast<std::size_t>(k)] = v[k];
+            }
+        } else if (!kepler_drift_tangent(c.eta[j], dt, &s.x[3 * j], &s.v[3 * j])) {
+            return false;
         }
     }
     return true;
@@ -253,7 +336,8 @@ std::vector<Op> corrector_ops(const std::vector<Stage>& stages, double sign) {
     return out;
 }
 
-bool apply_ops(const Chain& c, JacobiState& s, double h, const std::vector<Op>& ops, Scratch& w) {
+template <class T>
+bool apply_ops(const Chain<T>& c, JacobiState<T>& s, double h, const std::vector<Op>& ops, Scratch<T>& w) {
     for (const Op& op : ops) {
         if (op.is_kick) kick(c, s, op.amount * h, w);
         else if (!drift(c, s, op.amount * h)) return false;
@@ -265,19 +349,23 @@ bool finite(const std::vector<double>& v) {
     return std::all_of(v.begin(), v.end(), [](double x) { return std::isfinite(x); });
 }
 
-// Nodes of one direction: times, barycentric states (original order), accelerations and jerks.
+// Nodes of one direction: times, barycentric states (original order), accelerations and jerks; with the tangent
+// map, the derivatives of each node's position, velocity and acceleration too (WisdomHolmanResult::tangents).
 struct Track {
-    std::vector<double> times, states, accels, jerks;
+    std::vector<double> times, states, accels, jerks, tangents;
 };
 
+template <class T>
 class Runner {
 public:
-    Runner(const Chain& c, const std::vector<Stage>& stages, double h)
-        : c_(c), to_real_(corrector_ops(stages, 1.0)), to_mapped_(corrector_ops(stages, -1.0)), h_(h) {}
+    Runner(const Chain<T>& c, const std::vector<Stage>& stages, double h, std::size_t parameters)
+        : c_(c), to_real_(corrector_ops(stages, 1.0)), to_mapped_(corrector_ops(stages, -1.0)), h_(h), parameters_(parameters) {
+        for (const T& g : c.gm_original) gm_values_.push_back(value(g));
+    }
 
     // Records the real state of mapped state `s` at time t.
-    bool record(const JacobiState& s, double t, Track& out) {
-        JacobiState real = s;
+    bool record(const JacobiState<T>& s, double t, Track& out) {
+        JacobiState<T> real = s;
         if (!apply_ops(c_, real, h_, to_real_, w_)) return false;
         const std::size_t n = c_.n;
         pos_.resize(3 * n);
@@ -287,14 +375,43 @@ public:
         state_.resize(6 * n);
         for (std::size_t j = 0; j < n; ++j)
             for (std::size_t k = 0; k < 3; ++k) {
-                state_[6 * c_.original[j] + k] = pos_[3 * j + k];
-                state_[6 * c_.original[j] + 3 + k] = vel_[3 * j + k];
+                state_[6 * c_.original[j] + k] = value(pos_[3 * j + k]);
+                state_[6 * c_.original[j] + 3 + k] = value(vel_[3 * j + k]);
             }
         if (!finite(state_)) return false;
+        if constexpr (!std::is_same_v<T, double>) {
+            // The tangents of position, velocity and acceleration (the last for a quintic interpolation).
+            acc_t_.assign(3 * n, T(0.0));
+            for (std::size_t i = 0; i < n; ++i)
+                for (std::size_t j = i + 1; j < n; ++j) {
+                    const T dx = pos_[3 * j] - pos_[3 * i], dy = pos_[3 * j + 1] - pos_[3 * i + 1], dz = pos_[3 * j + 2] - pos_[3 * i + 2];
+                    const T r2 = dx * dx + dy * dy + dz * dz;
+                    const T inv3 = 1.0 / (r2 * sqrt(r2));
+                    const T fi = c_.gm[j] * inv3, fj = c_.gm[i] * inv3;
+                    const T d[3] = {dx, dy, dz};
+                    for (int k = 0; k < 3; ++k) {
+                        acc_t_[3 * i + static_cast<std::size_t>(k)] += fi * d[k];
+                        acc_t_[3 * j + static_cast<std::size_t>(k)] -= fj * d[k];
+                    }
+                }
+            if (c_.quad) add_quadrupole(*c_.quad, c_.gm, pos_.data(), acc_t_.data());
+            const std::size_t p = parameters_, base = out.tangents.size();
+            out.tangents.resize(base + tangent_rows_per_body * n * p);
+            for (std::size_t j = 0; j < n; ++j) {
+                double* row = &out.tangents[base + tangent_rows_per_body * c_.original[j] * p];
+                for (std::size_t k = 0; k < 3; ++k)
+                    for (std::size_t q = 0; q < p; ++q) {
+                        row[k * p + q] = pos_[3 * j + k].d[q];
+                        row[(3 + k) * p + q] = vel_[3 * j + k].d[q];
+                        row[(6 + k) * p + q] = acc_t_[3 * j + k].d[q];
+                    }
+            }
+            if (!finite(out.tangents)) return false;
+        }
         acc_.resize(3 * n);
         jerk_.resize(3 * n);
-        nbody_accelerations_and_jerks(n, gm_original_.data(), state_.data(), acc_.data(), jerk_.data());
-        if (c_.quad) add_central_quadrupole(*c_.quad, gm_original_, state_.data(), 6, acc_.data(), 3);
+        nbody_accelerations_and_jerks(n, gm_values_.data(), state_.data(), acc_.data(), jerk_.data());
+        if (c_.quad) add_central_quadrupole(*c_.quad, gm_values_, state_.data(), 6, acc_.data(), 3);
         out.times.push_back(t);
         out.states.insert(out.states.end(), state_.begin(), state_.end());
         out.accels.insert(out.accels.end(), acc_.begin(), acc_.end());
@@ -303,7 +420,7 @@ public:
     }
 
     // From real state x0 at t0, `steps` steps of h (signed), a node every `every` steps and at the end.
-    WisdomHolmanOutcome run(JacobiState s, double t0, std::size_t steps, int every, Track& out) {
+    WisdomHolmanOutcome run(JacobiState<T> s, double t0, std::size_t steps, int every, Track& out) {
         if (!apply_ops(c_, s, h_, to_mapped_, w_)) return WisdomHolmanOutcome::kepler_not_converged;
         if (!record(s, t0, out)) return WisdomHolmanOutcome::non_finite_state;
         const double half = 0.5 * h_;
@@ -322,19 +439,40 @@ public:
         return WisdomHolmanOutcome::ok;
     }
 
-    std::vector<double> gm_original_;
-
 private:
-    const Chain& c_;
+    const Chain<T>& c_;
     std::vector<Op> to_real_, to_mapped_;
     double h_;
-    Scratch w_;
-    std::vector<double> pos_, vel_, state_, acc_, jerk_;
+    std::size_t parameters_;
+    std::vector<double> gm_values_;
+    Scratch<T> w_;
+    std::vector<T> pos_, vel_, acc_t_;
+    std::vector<double> state_, acc_, jerk_;
 };
 
-}  // namespace
+// The backward tangents reversed without their copy of the start, then the forward ones: the order join_nodes
+// gives the nodes.
+void join_tangents(std::vector<double>& out, const Track& back, const Track& fwd, std::size_t per_node) {
+    const std::size_t nb = back.times.size();
+    for (std::size_t k = nb; k-- > (nb > 0 ? 1 : 0);)
+        out.insert(out.end(), back.tangents.begin() + static_cast<std::ptrdiff_t>(per_node * k),
+                   back.tangents.begin() + static_cast<std::ptrdiff_t>(per_node * (k + 1)));
+    out.insert(out.end(), fwd.tangents.begin(), fwd.tangents.end());
+}
 
-WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, double t_end, const WisdomHolmanOptions& options) {
+// The scalar of slot values: double, or a Dual seeded with the row of derivatives.
+template <class T>
+T seeded(double v, const double* row, std::size_t parameters) {
+    T x(v);
+    if constexpr (!std::is_same_v<T, double>) {
+        for (std::size_t q = 0; q < parameters; ++q) x.d[q] = row ? row[q] : 0.0;
+    }
+    return x;
+}
+
+template <class T>
+WisdomHolmanResult integrate_map(const System& s, double t_begin, double t_end, const WisdomHolmanOptions& options,
+                                 const TangentSeed* seed) {
     WisdomHolmanResult result;
     Ephemeris& eph = result.ephemeris;
     eph.bodies = s.bodies;
@@ -344,7 +482,8 @@ WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, doub
         result.outcome = WisdomHolmanOutcome::non_finite_state;
         return result;
     }
-    Chain c;
+    const std::size_t p = seed ? seed->parameters : 0;
+    Chain<T> c;
     c.n = n;
     c.quad = options.central_quadrupole ? &*options.central_quadrupole : nullptr;
     c.original.resize(n);
@@ -353,16 +492,18 @@ WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, doub
     std::stable_sort(c.original.begin() + 1, c.original.end(), [&](std::size_t a, std::size_t b) {
         return (s.position(a) - s.position(0)).norm() < (s.position(b) - s.position(0)).norm();
     });
+    for (std::size_t i = 0; i < n; ++i) c.gm_original.push_back(seeded<T>(s.gm[i], seed ? &seed->gm[i * p] : nullptr, p));
     for (std::size_t j = 0; j < n; ++j) {
-        c.gm.push_back(s.gm[c.original[j]]);
-        c.eta.push_back((j > 0 ? c.eta[j - 1] : 0.0) + c.gm[j]);
+        c.gm.push_back(c.gm_original[c.original[j]]);
+        c.eta.push_back(j > 0 ? c.eta[j - 1] + c.gm[j] : c.gm[j]);
     }
-    JacobiState x0;
-    std::vector<double> pos(3 * n), vel(3 * n);
+    JacobiState<T> x0;
+    std::vector<T> pos(3 * n), vel(3 * n);
     for (std::size_t j = 0; j < n; ++j)
         for (std::size_t k = 0; k < 3; ++k) {
-            pos[3 * j + k] = s.state[6 * c.original[j] + k];
-            vel[3 * j + k] = s.state[6 * c.original[j] + 3 + k];
+            const std::size_t ip = 6 * c.original[j] + k, iv = ip + 3;
+            pos[3 * j + k] = seeded<T>(s.state[ip], seed ? &seed->state[ip * p] : nullptr, p);
+            vel[3 * j + k] = seeded<T>(s.state[iv], seed ? &seed->state[iv * p] : nullptr, p);
         }
     x0.x.resize(3 * n);
     x0.v.resize(3 * n);
@@ -387,19 +528,40 @@ WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, doub
     Track back, fwd;
     WisdomHolmanOutcome out = WisdomHolmanOutcome::ok;
     if (nb > 0) {
-        Runner r(c, stages, -h);
-        r.gm_original_ = s.gm;
+        Runner<T> r(c, stages, -h, p);
         out = r.run(x0, s.time, nb, every, back);
     }
     if (out == WisdomHolmanOutcome::ok) {
-        Runner r(c, stages, h);
-        r.gm_original_ = s.gm;
+        Runner<T> r(c, stages, h, p);
         out = r.run(x0, s.time, nf, every, fwd);
     }
     result.outcome = out;
     result.steps = nb + nf;
     join_nodes(eph, back, fwd);
+    if (p > 0) {
+        result.tangent_parameters = p;
+        join_tangents(result.tangents, back, fwd, tangent_rows_per_body * n * p);
+    }
     return result;
+}
+
+}  // namespace
+
+WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, double t_end, const WisdomHolmanOptions& options) {
+    return integrate_map<double>(s, t_begin, t_end, options, nullptr);
+}
+
+WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, double t_end, const WisdomHolmanOptions& options,
+                                           const TangentSeed& seed) {
+    const std::size_t n = s.size(), p = seed.parameters;
+    if (p == 0 || p > max_tangent_parameters || seed.state.size() != 6 * n * p || seed.gm.size() != n * p)
+        throw std::invalid_argument("integrate_wisdom_holman: the tangent seed does not match the system");
+    // The smallest derivative width that holds the parameters: the cost of a Dual operation grows with it.
+    if (p <= 8) return integrate_map<Dual<8>>(s, t_begin, t_end, options, &seed);
+    if (p <= 16) return integrate_map<Dual<16>>(s, t_begin, t_end, options, &seed);
+    if (p <= 24) return integrate_map<Dual<24>>(s, t_begin, t_end, options, &seed);
+    if (p <= 32) return integrate_map<Dual<32>>(s, t_begin, t_end, options, &seed);
+    return integrate_map<Dual<48>>(s, t_begin, t_end, options, &seed);
 }
 
 }  // namespace wayward

@@ -45,11 +45,30 @@ struct WisdomHolmanResult {
     WisdomHolmanOutcome outcome = WisdomHolmanOutcome::ok;
     std::size_t steps = 0;
     double step_days = 0.0;
+    // With a tangent seed: the derivatives of position, velocity and acceleration with respect to each parameter
+    // at every ephemeris node, in the nodes' order: tangent_rows_per_body N x P per node (row 9 i + c of body
+    // i: c = 0..2 position, 3..5 velocity, 6..8 acceleration; column: the parameter).
+    std::size_t tangent_parameters = 0;
+    std::vector<double> tangents;
 };
+
+// The derivatives of the initial state and of the GMs with respect to P parameters: state 6N x P and gm N x P,
+// row-major (row: state component or body; column: parameter).
+struct TangentSeed {
+    std::size_t parameters = 0;
+    std::vector<double> state, gm;
+};
+inline constexpr std::size_t max_tangent_parameters = 48;
+inline constexpr std::size_t tangent_rows_per_body = 9;
 
 // Integrates from s.time to cover [t_begin, t_end] (backwards first when t_begin < s.time). The grid is
 // s.time + k h; the last node may lie up to one step beyond the span.
 WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, double t_end, const WisdomHolmanOptions& options = {});
+// The same run with the map's tangent map: the nodes' derivatives with respect to the seed's parameters (at most
+// max_tangent_parameters), exact for the discrete map with its step and Jacobi order held fixed. The
+// ephemeris may differ from the plain run's in the last bits (one more Newton step in each Kepler drift).
+WisdomHolmanResult integrate_wisdom_holman(const System& s, double t_begin, double t_end, const WisdomHolmanOptions& options,
+                                           const TangentSeed& seed);
 
 // Two-body drift of a relative orbit by dt (universal variables, any conic). Returns false if the universal
 // Kepler equation did not converge (the state is then unchanged).

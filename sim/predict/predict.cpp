@@ -50,6 +50,12 @@ Eigen::VectorXd HiddenParameters::steps() const {
     return s;
 }
 
+Eigen::VectorXd HiddenParameters::seed_steps() const {
+    Eigen::VectorXd s = steps();
+    s.tail(static_cast<Eigen::Index>(names.size())) *= 0.01;
+    return s;
+}
+
 ModelState FittedModel::state(const ModelSetup& setup, const Eigen::VectorXd& x) const {
     ModelState s = reference;
     unpack_planets(setup, reference, x.head(static_cast<Eigen::Index>(layout.planets)), s);
@@ -139,13 +145,33 @@ bool offsets_of(const ModelSetup& setup, const FittedModel& fit, const Eigen::Ve
     return true;
 }
 
-// Linear propagation: G = d(sky)/d(parameters) by forward differences, then G C G^T at every epoch.
-void propagate_linearly(const ModelSetup& setup, const FittedModel& fit, const Epochs& e, std::vector<Prediction>& out,
-                        const PredictHooks& hooks) {
+// G = d(sky)/d(parameters) at every epoch from the model's tangent map (one run). False if the run failed.
+bool tangent_sky_jacobians(const ModelSetup& setup, const FittedModel& fit, const Epochs& e, const std::vector<Prediction>& at,
+                           std::vector<Eigen::MatrixXd>& G, const PredictHooks& hooks) {
+    if (hooks.runs) ++*hooks.runs;
+    std::vector<Eigen::Index> all(static_cast<std::size_t>(fit.best.size()));
+    for (Eigen::Index j = 0; j < fit.best.size(); ++j) all[static_cast<std::size_t>(j)] = j;
+    const StateOf state_of = [&](const Eigen::VectorXd& x) { return fit.state(setup, x); };
+    const ModelRun r = run_model_tangent(setup, state_of, fit.best, all, fit.layout.seed_steps(), e.t_last);
+    if (!r.ok() || !r.hidden_index) return false;
+    for (std::size_t k = 0; k < at.size(); ++k) {
+        const SkyTangent d = apparent_tangent(setup, r, *r.hidden_index, e.t[k], setup.observer_helio_at(e.t[k]));
+        // The offsets of offsets_of: (lon - lon0) cos(lat0) and lat - lat0, in arcsec.
+        G[k].row(0) = d.d_lon * (std::cos(at[k].lat) / arcsec);
+        G[k].row(1) = d.d_lat / arcsec;
+    }
+    return true;
+}
+
+// Linear propagation: G = d(sky)/d(parameters) by the tangent map (or forward differences where the model has
+// none), then G C G^T at every epoch.
+std::vector<Eigen::MatrixXd> propagate_linearly(const ModelSetup& setup, const FittedModel& fit, const Epochs& e,
+                                                std::vector<Prediction>& out, const PredictHooks& hooks) {
     const Eigen::VectorXd steps = fit.layout.steps();
     const auto n = static_cast<Eigen::Index>(fit.best.size());
     std::vector<Eigen::MatrixXd> G(out.size(), Eigen::MatrixXd::Zero(2, n));
-    for (Eigen::Index j = 0; j < n; ++j) {
+    const bool tangent = has_tangent_map(setup, static_cast<std::size_t>(n)) && tangent_sky_jacobians(setup, fit, e, out, G, hooks);
+    for (Eigen::Index j = 0; j < n && !tangent; ++j) {
         Eigen::VectorXd xp = fit.best;
         xp[j] += steps[j];
         std::vector<Offset> d;
@@ -163,6 +189,7 @@ void propagate_linearly(const ModelSetup& setup, const FittedModel& fit, const E
         p.cov_bb = cov(1, 1);
         ellipse_axes(p.cov_ll, p.cov_lb, p.cov_bb, p.semi_major_arcsec, p.semi_minor_arcsec, p.orientation_deg);
     }
+    return G;
 }
 
 // The sampled ellipse and the 90 % radius of one epoch's sample offsets.
@@ -191,8 +218,12 @@ void summarise_samples(const std::vector<std::vector<Offset>>& d, std::size_t k,
 
 bool cancelled(const PredictHooks& hooks) { return hooks.cancel && hooks.cancel->load(); }
 
+// The covariance samples' sky offsets. A pilot of the first samples is always run in full; where every pilot
+// sample lies within linear_tolerance of the semi-minor axis of where G puts it, at every epoch, the map from
+// parameters to sky is linear over the region the samples cover, and the rest are propagated by G (a matrix
+// product instead of a model run each). Otherwise all are run in full.
 void sample_covariance(const ModelSetup& setup, const FittedModel& fit, const Epochs& e, const PredictOptions& o,
-                       std::vector<Prediction>& out, const PredictHooks& hooks) {
+                       const std::vector<Eigen::MatrixXd>& G, std::vector<Prediction>& out, const PredictHooks& hooks) {
     const Eigen::MatrixXd& C = fit.covariance;
     Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(C);
     const Eigen::MatrixXd L = es.eigenvectors() * es.eigenvalues().cwiseMax(0.0).cwiseSqrt().asDiagonal();
@@ -203,16 +234,51 @@ void sample_covariance(const ModelSetup& setup, const FittedModel& fit, const Ep
         for (Eigen::Index j = 0; j < z.size(); ++j) z[j] = normal(rng);
         xs.push_back(fit.best + L * z);
     }
+    auto linear = [&](std::size_t s, std::vector<Offset>& d) {
+        d.resize(out.size());
+        for (std::size_t k = 0; k < out.size(); ++k) {
+            const Eigen::Vector2d v = G[k] * (xs[s] - fit.best);
+            d[k] = {v[0], v[1]};
+        }
+    };
     std::vector<std::vector<Offset>> d(xs.size());
     std::atomic<std::size_t> sampled{0};
-    parallel_for(xs.size(), o.threads ? o.threads : 1, [&](std::size_t k) {
-        if (cancelled(hooks)) return;
-        offsets_of(setup, fit, xs[k], e, out, d[k], hooks);
-        if (hooks.report)
-            hooks.report("sampling the covariance", 0.2 + 0.8 * static_cast<double>(++sampled) / static_cast<double>(xs.size()));
-    });
-    if (cancelled(hooks)) throw Cancelled();
-    for (std::size_t k = 0; k < out.size(); ++k) summarise_samples(d, k, out[k]);
+    auto run_in_full = [&](std::size_t from, std::size_t to) {
+        parallel_for(to - from, o.threads ? o.threads : 1, [&](std::size_t i) {
+            if (cancelled(hooks)) return;
+            offsets_of(setup, fit, xs[from + i], e, out, d[from + i], hooks);
+            if (hooks.report)
+                hooks.report("sampling the covariance", 0.2 + 0.8 * static_cast<double>(++sampled) / static_cast<double>(xs.size()));
+        });
+        if (cancelled(hooks)) throw Cancelled();
+    };
+    const std::size_t pilot = o.linear_tolerance > 0.0 ? std::min(xs.size(), static_cast<std::size_t>(std::max(0, o.pilot_samples))) : xs.size();
+    run_in_full(0, pilot);
+    double worst = 0.0;  // the pilot's largest departure from linear, in units of the semi-minor axis
+    bool complete = true;
+    for (std::size_t s = 0; s < pilot; ++s) {
+        std::vector<Offset> lin;
+        linear(s, lin);
+        for (std::size_t k = 0; k < out.size(); ++k) {
+            if (d[s].size() <= k || !std::isfinite(d[s][k][0]) || !std::isfinite(d[s][k][1])) {
+                complete = false;  // a run that failed is itself a sign the region is not a small linear patch
+                continue;
+            }
+            const double minor = std::max(out[k].semi_minor_arcsec, 1e-9);
+            worst = std::max(worst, std::hypot(d[s][k][0] - lin[k][0], d[s][k][1] - lin[k][1]) / minor);
+        }
+    }
+    const bool linear_holds = pilot < xs.size() && complete && worst <= o.linear_tolerance;
+    if (linear_holds) {
+        for (std::size_t s = pilot; s < xs.size(); ++s) linear(s, d[s]);
+    } else {
+        run_in_full(pilot, xs.size());
+    }
+    for (std::size_t k = 0; k < out.size(); ++k) {
+        summarise_samples(d, k, out[k]);
+        out[k].samples_in_full = static_cast<int>(linear_holds ? pilot : xs.size());
+        out[k].pilot_departure = pilot > 0 ? worst : NAN;
+    }
 }
 
 }  // namespace
@@ -228,10 +294,10 @@ std::vector<Prediction> predict(const ModelSetup& setup, const FittedModel& fit,
     std::vector<Prediction> out(epochs_year.size());
     fill_positions(setup, run_best(setup, fit.state(setup, fit.best), e.t_track), epochs_year, e, o.track_years,
                    o.track_step_years, out);
-    propagate_linearly(setup, fit, e, out, hooks);
+    const std::vector<Eigen::MatrixXd> G = propagate_linearly(setup, fit, e, out, hooks);
     if (o.samples > 0) {
         if (hooks.report) hooks.report("sampling the covariance", 0.2);
-        sample_covariance(setup, fit, e, o, out, hooks);
+        sample_covariance(setup, fit, e, o, G, out, hooks);
     }
     return out;
 }

@@ -39,6 +39,9 @@ struct HiddenParameters {
     HiddenOrbit hidden(const Eigen::VectorXd& x) const;
     // Finite-difference steps for every parameter (scaled planet states 1, log mass 0.01, the others 1e-3).
     Eigen::VectorXd steps() const;
+    // Steps of the central differences that seed the tangent map (run_model_tangent): the planets' map to the
+    // state is linear (any step is exact), the hidden body's a hundredth of steps(): 1e-4 in log mass, 1e-5 rad.
+    Eigen::VectorXd seed_steps() const;
 };
 
 // What the predictor needs of a solve: the setup (weights as the solve left them), the reference state the
@@ -68,6 +71,8 @@ struct Prediction {
     double sampled_semi_major_arcsec = 0.0, sampled_semi_minor_arcsec = 0.0;
     double radius90_arcsec = 0.0;   // holds 90% of the sampled positions (about the predicted point)
     int samples_used = 0;
+    int samples_in_full = 0;        // of those, run through the model (the rest propagated linearly)
+    double pilot_departure = NAN;   // the pilot samples' largest departure from linear, in semi-minor axes
     // The samples' own sky positions (radians; in memory only), for a probability map of the region.
     std::vector<double> sample_lon, sample_lat;
     std::vector<TrackPoint> track;
@@ -77,6 +82,10 @@ struct PredictOptions {
     double track_years = 60.0;      // track +- this around each epoch (cut at the span's ends)
     double track_step_years = 1.0 / 24.0;  // fine enough for the annual parallax wobble (no aliasing in the luck curve)
     int samples = 300;              // covariance samples (0: none)
+    // The first pilot_samples are run through the model; if each lies within linear_tolerance of the
+    // semi-minor axis of its linear propagation, at every epoch, the rest are propagated linearly (0: all in full).
+    int pilot_samples = 40;
+    double linear_tolerance = 0.02;
     std::uint64_t seed = 1;         // of the samples
     unsigned threads = 1;           // for the samples (results do not depend on it)
 };

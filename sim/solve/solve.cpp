@@ -71,6 +71,35 @@ struct Problem {
         prior_residuals(x, r);
         return r.allFinite();
     }
+    bool has_jacobian(std::size_t columns) const { return has_tangent_map(*setup, columns); }
+    // The Jacobian of evaluate's residuals with respect to x[columns], by the model's tangent map (one run).
+    bool jacobian(const Eigen::VectorXd& x, const std::vector<Eigen::Index>& columns, Eigen::MatrixXd& jac) const {
+        if (runs) ++*runs;
+        const StateOf state_of = [this](const Eigen::VectorXd& v) { return state(v); };
+        const ModelRun run = run_model_tangent(*setup, state_of, x, columns, layout().seed_steps(), setup->t_end);
+        Eigen::MatrixXd obs;
+        if (!weighted_residual_jacobian(*setup, run, obs)) return false;
+        jac = Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(residual_count()), static_cast<Eigen::Index>(columns.size()));
+        jac.topRows(obs.rows()) = obs;
+        // The priors' rows, in prior_residuals' order.
+        const HiddenParameters& l = layout();
+        Eigen::Index k = obs.rows();
+        auto row_of = [&](int parameter, double derivative) {
+            for (std::size_t q = 0; q < columns.size(); ++q)
+                if (columns[q] == parameter) jac(k, static_cast<Eigen::Index>(q)) = derivative;
+            ++k;
+        };
+        if (prior_a_sigma > 0.0) row_of(l.i_a, std::exp(x[l.i_a]) / prior_a_sigma);
+        if (l.i_k >= 0) {
+            row_of(l.i_k, 1.0 / options.eccentricity_prior_sigma);
+            row_of(l.i_h, 1.0 / options.eccentricity_prior_sigma);
+        }
+        if (l.i_ix >= 0) {
+            row_of(l.i_ix, 1.0 / options.inclination_prior_rad);
+            row_of(l.i_iy, 1.0 / options.inclination_prior_rad);
+        }
+        return jac.allFinite();
+    }
 };
 
 LeastSquaresProblem as_lsq(const Problem& p) {
@@ -79,6 +108,11 @@ LeastSquaresProblem as_lsq(const Problem& p) {
     q.residuals = p.residual_count();
     q.step = p.layout().steps();
     q.evaluate = [&p](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return p.evaluate(x, r); };
+    if (p.has_jacobian(q.parameters)) {
+        std::vector<Eigen::Index> all(q.parameters);
+        for (std::size_t j = 0; j < q.parameters; ++j) all[j] = static_cast<Eigen::Index>(j);
+        q.jacobian = [&p, all](const Eigen::VectorXd& x, Eigen::MatrixXd& jac) { return p.jacobian(x, all, jac); };
+    }
     return q;
 }
 
@@ -255,18 +289,39 @@ std::vector<LeastSquaresResult> fit_starts(const KnownFit& known, const Problem&
         }
         return true;
     };
-    LeastSquaresProblem reduced;
-    reduced.parameters = static_cast<std::size_t>(n_theta);
-    reduced.residuals = prob.residual_count();
-    reduced.step = prob.layout().steps().tail(n_theta);
-    reduced.evaluate = [&](const Eigen::VectorXd& theta, Eigen::VectorXd& r) {
-        Eigen::VectorXd x;
-        return with_planets(theta, x) && prob.evaluate(x, r);
-    };
+    std::vector<Eigen::Index> theta_columns(static_cast<std::size_t>(n_theta));
+    for (Eigen::Index j = 0; j < n_theta; ++j) theta_columns[static_cast<std::size_t>(j)] = n_planet + j;
     std::vector<LeastSquaresResult> fits(order.size());
     std::atomic<std::size_t> fitted{0};
     parallel_for(order.size(), threads, [&](std::size_t s) {
         const std::size_t c = order[s];
+        // Each start's problem keeps the full vector of its last evaluation: LM asks for the Jacobian where it
+        // has just evaluated, and the planets' corrections need not be solved again for it.
+        Eigen::VectorXd last_theta, last_x;
+        LeastSquaresProblem reduced;
+        reduced.parameters = static_cast<std::size_t>(n_theta);
+        reduced.residuals = prob.residual_count();
+        reduced.step = prob.layout().steps().tail(n_theta);
+        reduced.evaluate = [&](const Eigen::VectorXd& theta, Eigen::VectorXd& r) {
+            Eigen::VectorXd x;
+            if (!with_planets(theta, x) || !prob.evaluate(x, r)) return false;
+            last_theta = theta;
+            last_x = x;
+            return true;
+        };
+        if (prob.has_jacobian(theta_columns.size())) {
+            // The reduced Jacobian: the hidden body's columns at the corrected planets, less what the planets'
+            // corrections take up, (I - Jp Jp^+) J_theta (Kaufman's approximation in variable projection).
+            reduced.jacobian = [&](const Eigen::VectorXd& theta, Eigen::MatrixXd& jac) {
+                Eigen::VectorXd x;
+                if (last_theta.size() == theta.size() && last_theta == theta) x = last_x;
+                else if (!with_planets(theta, x)) return false;
+                if (!prob.jacobian(x, theta_columns, jac)) return false;
+                const Eigen::MatrixXd obs = jac.topRows(n_obs);
+                jac.topRows(n_obs) = obs - known.jacobian * jp_qr.solve(obs);
+                return jac.allFinite();
+            };
+        }
         Eigen::VectorXd theta0 = Eigen::VectorXd::Zero(n_theta);
         theta0[prob.layout().i_logm - n_planet] = std::log(std::max(g.cells[c].alpha, 1e-3) * Grid::m_ref);
         if (prob.layout().i_a >= 0) theta0[prob.layout().i_a - n_planet] = std::log(g.a_of(c));
@@ -415,7 +470,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     sol.scenario_name = ex.brief.scenario_name;
     sol.priors = o.describe();
     sol.spacing_rule_au = spacing_rule_next(ex.brief);
-    std::atomic<int> runs{0};
+    std::atomic<int> runs{known->model_runs};  // every forward-model run, the known-bodies fit's included
     Problem prob = make_problem(setup, ex.brief, o, sol.spacing_rule_au);
     prob.runs = &runs;
 
@@ -499,6 +554,7 @@ std::string solution_toml(const Solution& s) {
     pt.insert("sampled_semi_minor_arcmin", p.sampled_semi_minor_arcsec / 60.0);
     pt.insert("radius90_arcmin", p.radius90_arcsec / 60.0);
     pt.insert("samples", static_cast<int64_t>(p.samples_used));
+    pt.insert("samples_in_full", static_cast<int64_t>(p.samples_in_full));
     toml::array years, lons, lats;
     for (const TrackPoint& t : p.track) {
         years.push_back(t.year);
@@ -588,6 +644,7 @@ Solution load_solution(const std::string& path) {
         p.sampled_semi_minor_arcsec = r.number_or("sampled_semi_minor_arcmin", 0.0) * 60.0;
         p.radius90_arcsec = r.number_or("radius90_arcmin", 0.0) * 60.0;
         p.samples_used = static_cast<int>(r.integer_in("samples", 0, 1LL << 30).value_or(0));
+        p.samples_in_full = static_cast<int>(r.integer_in("samples_in_full", 0, p.samples_used).value_or(p.samples_used));
         const auto ys = r.numbers("track_year").value_or(std::vector<double>{});
         const auto ls = r.numbers("track_lon_deg").value_or(std::vector<double>{});
         const auto bs = r.numbers("track_lat_deg").value_or(std::vector<double>{});
