@@ -270,15 +270,19 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
 
     out << std::setprecision(4);
     out << "Hidden body, " << o.describe() << " (" << s.model_runs << " model runs):\n";
-    out << "  local minima (best first):\n";
+    out << "  local minima (best first; probability: each basin's share by the Laplace approximation):\n";
     // Columns padded by displayed width and always two spaces apart, so long numbers never run together.
     out << "    " << pad("a (au)", 10) << "  " << pad("mean longitude (deg)", 20) << "  " << pad("mass (solar)", 12) << "  " << pad("e", 7)
-        << "  " << pad("chi2", 14) << "\n";
+        << "  " << pad("chi2", 14) << "  " << pad("probability", 11) << "\n";
     for (const Minimum& m : s.minima)
         out << "    " << pad(table_number("%.4g", m.orbit.semi_major_axis), 10) << "  "
             << pad(table_number("%.4g", wrap_two_pi(m.orbit.mean_longitude) / deg), 20) << "  " << pad(table_number("%.4g", m.orbit.mass), 12)
-            << "  " << pad(table_number("%.4g", std::hypot(m.orbit.k, m.orbit.h)), 7) << "  " << pad(table_number("%.8g", m.chi2), 14)
+            << "  " << pad(table_number("%.4g", std::hypot(m.orbit.k, m.orbit.h)), 7) << "  " << pad(table_number("%.8g", m.chi2), 14) << "  "
+            << pad(std::isfinite(m.probability) ? table_number("%.3g", m.probability) : std::string("-"), 11)
             << (m.converged ? "" : "  (not converged)") << "\n";
+    for (std::size_t i = 0; i < s.minima.size(); ++i)
+        for (const std::string& f : s.minima[i].flags)
+            out << "  implausible: minimum " << i + 1 << " (a = " << table_number("%.4g", s.minima[i].orbit.semi_major_axis) << " au): " << f << "\n";
     out << "  best: a = " << s.best.semi_major_axis << " +- " << s.distance_sigma_au << " au, mass = " << s.best.mass << " +- "
         << s.mass_sigma << " solar masses, e = " << std::hypot(s.best.k, s.best.h) << "\n";
     if (s.spacing_rule_au > 0) out << "  (the spacing rule's next distance is " << s.spacing_rule_au << " au)\n";

@@ -14,11 +14,13 @@ namespace wayward {
 
 template <int N>
 struct Dual {
-    double v = 0.0;
-    std::array<double, N> d{};
+    double v;
+    std::array<double, N> d;
 
-    Dual() = default;
-    Dual(double value) : v(value) {}  // NOLINT: a constant is a Dual with zero derivatives
+    struct Uninitialised {};
+    explicit Dual(Uninitialised) {}  // for results about to be written in full: no zero fill to throw away
+    Dual() : v(0.0) { d.fill(0.0); }
+    Dual(double value) : v(value) { d.fill(0.0); }  // NOLINT: a constant is a Dual with zero derivatives
 
     Dual& operator+=(const Dual& o) {
         v += o.v;
@@ -47,26 +49,63 @@ struct Dual {
         return *this;
     }
     Dual operator-() const {
-        Dual r;
+        Dual r{Uninitialised{}};
         r.v = -v;
         for (int i = 0; i < N; ++i) r.d[i] = -d[i];
         return r;
     }
 };
 
-template <int N> Dual<N> operator+(Dual<N> a, const Dual<N>& b) { return a += b; }
-template <int N> Dual<N> operator-(Dual<N> a, const Dual<N>& b) { return a -= b; }
-template <int N> Dual<N> operator*(Dual<N> a, const Dual<N>& b) { return a *= b; }
-template <int N> Dual<N> operator/(Dual<N> a, const Dual<N>& b) { return a /= b; }
-template <int N> Dual<N> operator+(Dual<N> a, double b) { a.v += b; return a; }
-template <int N> Dual<N> operator+(double a, Dual<N> b) { b.v += a; return b; }
-template <int N> Dual<N> operator-(Dual<N> a, double b) { a.v -= b; return a; }
-template <int N> Dual<N> operator-(double a, const Dual<N>& b) { Dual<N> r = -b; r.v += a; return r; }
-template <int N> Dual<N> operator*(Dual<N> a, double b) { return a *= b; }
-template <int N> Dual<N> operator*(double a, Dual<N> b) { return b *= a; }
-template <int N> Dual<N> operator/(Dual<N> a, double b) { return a *= 1.0 / b; }
+// Binary operators write their result directly (no copy of an operand first: at N = 32 a Dual is 264 bytes,
+// and copies were most of the cost).
+template <int N> Dual<N> operator+(const Dual<N>& a, const Dual<N>& b) {
+    Dual<N> r{typename Dual<N>::Uninitialised{}};
+    r.v = a.v + b.v;
+    for (int i = 0; i < N; ++i) r.d[i] = a.d[i] + b.d[i];
+    return r;
+}
+template <int N> Dual<N> operator-(const Dual<N>& a, const Dual<N>& b) {
+    Dual<N> r{typename Dual<N>::Uninitialised{}};
+    r.v = a.v - b.v;
+    for (int i = 0; i < N; ++i) r.d[i] = a.d[i] - b.d[i];
+    return r;
+}
+template <int N> Dual<N> operator*(const Dual<N>& a, const Dual<N>& b) {
+    Dual<N> r{typename Dual<N>::Uninitialised{}};
+    r.v = a.v * b.v;
+    for (int i = 0; i < N; ++i) r.d[i] = a.d[i] * b.v + a.v * b.d[i];
+    return r;
+}
+template <int N> Dual<N> operator/(const Dual<N>& a, const Dual<N>& b) {
+    Dual<N> r{typename Dual<N>::Uninitialised{}};
+    const double inv = 1.0 / b.v;
+    r.v = a.v * inv;
+    for (int i = 0; i < N; ++i) r.d[i] = (a.d[i] - r.v * b.d[i]) * inv;
+    return r;
+}
+template <int N> Dual<N> operator+(const Dual<N>& a, double b) {
+    Dual<N> r = a;
+    r.v += b;
+    return r;
+}
+template <int N> Dual<N> operator+(double a, const Dual<N>& b) { return b + a; }
+template <int N> Dual<N> operator-(const Dual<N>& a, double b) { return a + (-b); }
+template <int N> Dual<N> operator-(double a, const Dual<N>& b) {
+    Dual<N> r{typename Dual<N>::Uninitialised{}};
+    r.v = a - b.v;
+    for (int i = 0; i < N; ++i) r.d[i] = -b.d[i];
+    return r;
+}
+template <int N> Dual<N> operator*(const Dual<N>& a, double b) {
+    Dual<N> r{typename Dual<N>::Uninitialised{}};
+    r.v = a.v * b;
+    for (int i = 0; i < N; ++i) r.d[i] = a.d[i] * b;
+    return r;
+}
+template <int N> Dual<N> operator*(double a, const Dual<N>& b) { return b * a; }
+template <int N> Dual<N> operator/(const Dual<N>& a, double b) { return a * (1.0 / b); }
 template <int N> Dual<N> operator/(double a, const Dual<N>& b) {
-    Dual<N> r;
+    Dual<N> r{typename Dual<N>::Uninitialised{}};
     r.v = a / b.v;
     const double f = -r.v / b.v;
     for (int i = 0; i < N; ++i) r.d[i] = f * b.d[i];
@@ -75,7 +114,7 @@ template <int N> Dual<N> operator/(double a, const Dual<N>& b) {
 
 template <int N>
 Dual<N> sqrt(const Dual<N>& a) {
-    Dual<N> r;
+    Dual<N> r{typename Dual<N>::Uninitialised{}};
     r.v = std::sqrt(a.v);
     const double f = 0.5 / r.v;
     for (int i = 0; i < N; ++i) r.d[i] = f * a.d[i];

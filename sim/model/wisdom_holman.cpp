@@ -406,7 +406,8 @@ public:
                         row[(6 + k) * p + q] = acc_t_[3 * j + k].d[q];
                     }
             }
-            if (!finite(out.tangents)) return false;
+            if (!std::all_of(out.tangents.begin() + static_cast<std::ptrdiff_t>(base), out.tangents.end(), [](double x) { return std::isfinite(x); }))
+                return false;  // this node's only: checking them all each time would grow with the square of the nodes
         }
         acc_.resize(3 * n);
         jerk_.resize(3 * n);

@@ -13,6 +13,7 @@
 #include "sim/base/random.hpp"
 #include "sim/io/toml_reader.hpp"
 #include "sim/base/units.hpp"
+#include "sim/solve/minima.hpp"
 
 namespace wayward {
 
@@ -440,6 +441,26 @@ void check_fit(Solution& sol, const KnownFit& known, const KnownWeights& before,
     }
 }
 
+// ---- every minimum's probability and physical plausibility (minima.hpp) ----
+void weigh_minima(Solution& sol, const Problem& prob, const Brief& brief) {
+    const double scale = sol.covariance_scaled || sol.covariance_widened ? sol.chi2 / static_cast<double>(sol.dof) : 1.0;
+    const LeastSquaresProblem lsq = as_lsq(prob);
+    std::vector<double> log_weights;
+    for (Minimum& m : sol.minima) {
+        m.flags = implausibility_flags(m.orbit, brief);
+        Eigen::VectorXd r;
+        Eigen::MatrixXd J;
+        int runs = 0;
+        // The tangent map needs no residuals at the point; differences do.
+        if (lsq.jacobian) r = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(prob.residual_count()));
+        const bool ok = m.parameters.size() == static_cast<Eigen::Index>(prob.layout().size()) &&
+                        (lsq.jacobian || prob.evaluate(m.parameters, r)) && problem_jacobian(lsq, m.parameters, r, J, runs);
+        log_weights.push_back(ok ? laplace_log_weight(m.chi2, J, scale) : NAN);
+    }
+    const std::vector<double> p = probabilities_from_log_weights(log_weights);
+    for (std::size_t i = 0; i < sol.minima.size(); ++i) sol.minima[i].probability = p[i];
+}
+
 }  // namespace
 
 PredictOptions prediction_options(const SolveOptions& o) {
@@ -492,6 +513,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     sol.chi2 = best.chi2;
     set_covariance(sol, prob, best);
     check_fit(sol, *known, before, prob, best, o);
+    weigh_minima(sol, prob, ex.brief);
     sol.fit.reference = prob.fit.reference;
     sol.fit.layout = prob.fit.layout;
     sol.fit.best = best.x;
@@ -574,6 +596,10 @@ std::string solution_toml(const Solution& s) {
         t.insert("e", std::hypot(m.orbit.k, m.orbit.h));
         t.insert("chi2", m.chi2);
         t.insert("converged", m.converged);
+        if (std::isfinite(m.probability)) t.insert("probability", m.probability);
+        toml::array flags;
+        for (const std::string& f : m.flags) flags.push_back(f);
+        t.insert("flags", flags);
         mins.push_back(t);
     }
     root.insert("minimum", mins);
@@ -674,6 +700,8 @@ Solution load_solution(const std::string& path) {
         m.orbit.k = e;
         m.chi2 = r.number_or("chi2", 0.0);
         m.converged = r.boolean("converged").value_or(false);
+        m.probability = r.number_or("probability", NAN);
+        m.flags = r.strings("flags").value_or(std::vector<std::string>{});
         r.finish();
         s.minima.push_back(m);
     }

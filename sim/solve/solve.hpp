@@ -35,6 +35,8 @@ struct Minimum {
     int iterations = 0;
     double start_distance_au = 0.0, start_longitude = 0.0;
     Eigen::VectorXd parameters;     // the whole parameter vector (planets' corrections included); in memory only
+    double probability = NAN;       // relative probability among the minima (Laplace approximation, minima.hpp)
+    std::vector<std::string> flags; // physical implausibilities (minima.hpp), empty when none
 };
 
 struct Solution {
