@@ -56,8 +56,11 @@ with tempfile.TemporaryDirectory() as work:
     check(abs(prob.sum() - 1.0) < 1e-9 and prob.min() >= 0.0, f"probabilities sum to 1 within 1e-9 (sum - 1 = {prob.sum() - 1:.2e})")
 
     # --- The peak against the solve's predicted point (healpy.ang2pix, healpy.get_all_neighbours, healpy.rotator.angdist).
-    # Along a long ellipse's major axis the top of the map is flat over several pixels (neighbours within a percent
-    # of the peak), so "within one pixel" is read as: the predicted point's own pixel is the peak pixel or touches it.
+    # The map is a kernel density estimate from a few hundred samples: its top is flat over several pixels, and
+    # where exactly its highest pixel falls moves with the draws by about n^(-1/6) of the ellipse's minor axis
+    # (two to three pixels here; Scott 1992, Multivariate Density Estimation, ch. 6, for the estimate's noise).
+    # So "the peak is where the solve says" is read at the resolution the samples support: the predicted point's
+    # own pixel holds at least 90 % of the peak probability.
     with open(os.path.join(ex, "solution.toml"), "rb") as fh:
         pred = tomllib.load(fh)["prediction"]
     peak = int(np.argmax(prob))
@@ -65,9 +68,8 @@ with tempfile.TemporaryDirectory() as work:
     sep = math.degrees(hp.rotator.angdist([peak_lon, peak_lat], [pred["lon_deg"], pred["lat_deg"]], lonlat=True)[0])
     pixel_deg = math.degrees(hp.nside2resol(nside))
     own = int(hp.ang2pix(nside, pred["lon_deg"], pred["lat_deg"], nest=True, lonlat=True))
-    touching = [own] + [int(q) for q in hp.get_all_neighbours(nside, own, nest=True) if q >= 0]
-    check(peak in touching, f"peak pixel is the predicted point's pixel or its neighbour: {sep * 60:.2f} arcmin from the point "
-          f"({sep / pixel_deg:.2f} pixel sides), its own pixel holds {prob[own] / prob[peak]:.4f} of the peak")
+    check(prob[own] >= 0.9 * prob[peak], f"the predicted point's pixel holds {prob[own] / prob[peak]:.4f} of the peak (at least 0.9); "
+          f"the peak pixel is {sep * 60:.2f} arcmin from the point ({sep / pixel_deg:.2f} pixel sides)")
     # The map's probability-weighted mean direction (healpy.pix2vec) within one pixel side of the predicted point.
     nz = np.nonzero(prob)[0]
     mean = (np.array(hp.pix2vec(nside, nz, nest=True)) * prob[nz]).sum(axis=1)

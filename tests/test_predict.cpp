@@ -3,6 +3,7 @@
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <string>
 
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
@@ -41,6 +42,15 @@ void check_same(const Prediction& a, const Prediction& b) {
         CHECK(a.track[k].lon == b.track[k].lon);
         CHECK(a.track[k].lat == b.track[k].lat);
     }
+}
+
+// An exercise made in memory from a bundled scenario and seed, with the noise `wayward new` draws.
+ExerciseInMemory bundled_exercise(const std::string& name, std::uint64_t seed) {
+    const Scenario sc = load_scenario(testing::source_path("scenarios/" + name + ".toml"));
+    IntegrationResult run;
+    const Truth truth = generate(sc, seed, &run);
+    const ObservationSet obs = observe(sc, truth, run.ephemeris, seed);
+    return exercise_in_memory(sc, truth, obs, make_brief(sc, truth, seed), run.ephemeris);
 }
 
 }  // namespace
@@ -129,12 +139,7 @@ TEST_CASE("parameter layout: the hidden orbit of a vector, and the steps of each
 }
 
 TEST_CASE("covariance samples are propagated linearly only where a pilot run through the model shows the map is linear") {
-    const Scenario tutorial = load_scenario(testing::source_path("scenarios/tutorial.toml"));
-    IntegrationResult run;
-    const std::uint64_t seed = 1;
-    const Truth truth = generate(tutorial, seed, &run);
-    const ObservationSet obs = observe(tutorial, truth, run.ephemeris, seed);
-    const ExerciseInMemory m = exercise_in_memory(tutorial, truth, obs, make_brief(tutorial, truth, seed), run.ephemeris);
+    const ExerciseInMemory m = bundled_exercise("tutorial", 1);
     SolveOptions o;
     o.threads = 2;
     const Solution sol = solve(m.exercise, o);
@@ -154,12 +159,42 @@ TEST_CASE("covariance samples are propagated linearly only where a pilot run thr
 
     // The hard scenario's distance is poorly known and its region far from linear: the pilot fails and every
     // sample is run through the model.
-    const Scenario hard = load_scenario(testing::source_path("scenarios/hard.toml"));
-    IntegrationResult run_h;
-    const Truth truth_h = generate(hard, seed, &run_h);
-    const ObservationSet obs_h = observe(hard, truth_h, run_h.ephemeris, seed);
-    const ExerciseInMemory h = exercise_in_memory(hard, truth_h, obs_h, make_brief(hard, truth_h, seed), run_h.ephemeris);
+    const ExerciseInMemory h = bundled_exercise("hard", 1);
     const Solution sol_h = solve(h.exercise, o);
     CHECK(sol_h.prediction.pilot_departure > 0.02);
     CHECK(sol_h.prediction.samples_in_full == sol_h.prediction.samples_used);
+}
+
+TEST_CASE("importance-weighted samples: equal weights where the problem is linear, and a usable sample where it is not") {
+    SolveOptions o;
+    o.threads = 2;
+    // Tutorial, every sample run through the model: the profile posterior equals the proposal, so the weights
+    // are all close to one (effective sample size near the sample count).
+    {
+        const ExerciseInMemory m = bundled_exercise("tutorial", 1);
+        const Solution sol = solve(m.exercise, o);
+        PredictOptions full = prediction_options(o);
+        full.linear_tolerance = 0.0;
+        const Prediction p = predict(*sol.setup, sol.fit, {sol.prediction.epoch_year}, full).front();
+        REQUIRE(std::isfinite(p.effective_samples));
+        CHECK(p.effective_samples > 0.95 * p.samples_used);
+        double sum = 0.0;
+        for (double w : p.sample_weight) sum += w;
+        CHECK(sum == doctest::Approx(1.0).epsilon(1e-12));
+        // The weighted samples agree with the linear ellipse.
+        CHECK(std::abs(p.sampled_semi_major_arcsec / p.semi_major_arcsec - 1.0) < 0.15);
+    }
+    // The default scenario (seed 2): the planets' states make the joint Gaussian a poor picture, but the profiled
+    // samples keep most of their weight and agree with the linear ellipse to its sampling error.
+    {
+        const ExerciseInMemory m = bundled_exercise("default", 2);
+        const Solution sol = solve(m.exercise, o);
+        const Prediction& p = sol.prediction;
+        REQUIRE(std::isfinite(p.effective_samples));
+        MESSAGE("default seed 2: effective sample size " << p.effective_samples << " of " << p.samples_used << "; sampled "
+                                                         << p.sampled_semi_major_arcsec / 60 << "' vs linear " << p.semi_major_arcsec / 60 << "'");
+        CHECK(p.effective_samples > 0.5 * p.samples_used);
+        CHECK(std::abs(p.sampled_semi_major_arcsec / p.semi_major_arcsec - 1.0) < 0.15);
+        CHECK(std::abs(p.sampled_semi_minor_arcsec / p.semi_minor_arcsec - 1.0) < 0.15);
+    }
 }

@@ -79,6 +79,9 @@ Command add_solve(CLI::App& app) {
     c->add_flag("--point-anyway", sv.point_anyway, "write the best solution's pointing even when the record does not demand a hidden body");
     c->add_option("--fitting-model", sv.fitting_model, "the fitting model's integrator: wisdom-holman (fast) or adaptive (the reference)")->capture_default_str();
     c->add_option("--derivatives", sv.derivatives, "fit Jacobians: variational (the map's tangent map, one run) or differences (a run per parameter)")->capture_default_str();
+    c->add_option("--era-systematics", sv.era_systematics,
+                  "fit each era's offset (offsets) or offset and drift (drifts) as nuisance parameters, all eras but the most weighted; none: trust the eras")
+        ->capture_default_str();
     c->add_option("--out", sv.out_file, "solution file to write (default EXERCISE/solution.toml)");
     c->add_flag("--sky-map", sv.sky_map, "also write the prediction's probability map (DIR/skymap.fits, HEALPix) and its 50/90/99 % regions (DIR/skymap_regions.csv)");
     return {c, [args] { return run_solve(*args, std::cout, std::cerr); }};

@@ -224,6 +224,9 @@ SolveOptions solve_options(const SolveArgs& a) {
     }
     if (a.derivatives != "variational" && a.derivatives != "differences")
         throw InputError("", 0, "--derivatives", "must be variational or differences, not '" + a.derivatives + "'");
+    if (a.era_systematics != "none" && a.era_systematics != "offsets" && a.era_systematics != "drifts")
+        throw InputError("", 0, "--era-systematics", "must be none, offsets or drifts, not '" + a.era_systematics + "'");
+    o.model.era_systematics = a.era_systematics;
     o.model.integrator = a.fitting_model;
     // The adaptive reference model has no tangent map: its fits always take differences.
     o.model.derivatives = a.fitting_model == "wisdom-holman" ? a.derivatives : "differences";
@@ -307,6 +310,13 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
         << " deg (from north, +β, through east, +λ)\n";
     out << "  1-sigma ellipse (" << p.samples_used << " samples): " << p.sampled_semi_major_arcsec / 60 << " x "
         << p.sampled_semi_minor_arcsec / 60 << " arcmin; 90% of samples within " << p.radius90_arcsec / 60 << " arcmin\n";
+    if (std::isfinite(p.effective_samples)) {
+        out << "  (the model is not linear over the region: the samples were drawn in the hidden body's parameters, the planets'\n"
+            << "  corrections solved for each, and weighted by their exact chi2; effective sample size " << std::setprecision(1)
+            << p.effective_samples << std::setprecision(3) << " of " << p.samples_used << ")\n";
+        if (p.effective_samples < 30.0)
+            out << "  Caution: so few effective samples cannot map the region; its shape and size are poorly known.\n";
+    }
     if (p.samples_in_full < p.samples_used)
         out << "  (" << p.samples_in_full << " samples run through the model lay within " << std::setprecision(1)
             << 100.0 * p.pilot_departure << std::setprecision(3) << "% of the minor axis of their linear propagation; the other "

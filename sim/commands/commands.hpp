@@ -57,6 +57,7 @@ struct SolveArgs {
     bool point_anyway = false;    // write the pointing even when the record does not demand a hidden body
     std::string fitting_model = "wisdom-holman";  // a name of model_integrators()
     std::string derivatives = "variational";      // variational or differences
+    std::string era_systematics = "none";         // none, offsets or drifts (nuisance parameters per era)
     std::string out_file;  // where solution.toml goes (default: EXERCISE/solution.toml)
     bool sky_map = false;  // also write DIR/skymap.fits and DIR/skymap_regions.csv
 };

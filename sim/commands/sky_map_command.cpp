@@ -23,7 +23,10 @@ void write_sky_map(const std::string& dir, const Brief& brief, const std::string
         throw std::runtime_error("sky map: only " + std::to_string(p.sample_lon.size()) + " of the covariance samples could be integrated");
     // The resolution follows the sampled ellipse, the one the map is made of.
     const int nside = sky_map_nside(p.sampled_semi_minor_arcsec);
-    const SkyMap map = make_sky_map(equal_weight_samples(p.sample_lon, p.sample_lat), nside);
+    std::vector<SkySample> samples = equal_weight_samples(p.sample_lon, p.sample_lat);
+    if (p.sample_weight.size() == samples.size())
+        for (std::size_t i = 0; i < samples.size(); ++i) samples[i].weight = p.sample_weight[i];  // importance weights
+    const SkyMap map = make_sky_map(samples, nside);
     const std::vector<RankedPixel> ranked = ranked_pixels(map);
     const std::vector<SkyRegion> regions = sky_regions(map, ranked, {0.5, 0.9, 0.99});
     const std::string csv_path = dir + "/" + sky_map_regions_name;

@@ -188,7 +188,8 @@ KnownFit fit_known(const Exercise& ex, const ModelOptions& options, const std::f
     weighted_residuals(setup, fit.run, r);
     fit.chi2 = r.squaredNorm();
     for (const FitObservation& f : setup.obs) (f.rejected ? fit.rejected : fit.kept) += 1;
-    fit.dof = 2 * fit.kept > prob.parameters ? 2 * fit.kept - prob.parameters : 1;
+    const std::size_t fitted = prob.parameters + era_systematic_parameters(setup.era_view());
+    fit.dof = 2 * fit.kept > fitted ? 2 * fit.kept - fitted : 1;
     int evals = 0;
     problem_jacobian(prob, x, r, fit.jacobian, evals);
     return fit;

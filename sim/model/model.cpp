@@ -46,6 +46,7 @@ Vec3 ModelSetup::observer_helio_at(double t) const { return inner.position(obser
 ModelSetup make_setup(const Exercise& ex, const ModelOptions& options) {
     if (!is_model_integrator(options.integrator))
         throw std::invalid_argument("unknown fitting-model integrator '" + options.integrator + "'");
+    era_systematics_from_name(options.era_systematics);  // throws for an unknown name
     if (options.derivatives != "variational" && options.derivatives != "differences")
         throw std::invalid_argument("unknown kind of derivatives '" + options.derivatives + "' (variational or differences)");
     ModelSetup s;
@@ -83,6 +84,13 @@ ModelSetup make_setup(const Exercise& ex, const ModelOptions& options) {
         t_min = std::min(t_min, o.time_days);
         t_max = std::max(t_max, o.time_days);
         s.obs.push_back(f);
+    }
+    // The reference era (no nuisance offsets): the most statistical weight, by the sigma as recorded (1" where not).
+    {
+        std::vector<double> weight(s.eras.size(), 0.0);
+        for (const FitObservation& f : s.obs)
+            weight[f.era] += 1.0 / (f.sigma_lon_arcsec * f.sigma_lon_arcsec) + 1.0 / (f.sigma_lat_arcsec * f.sigma_lat_arcsec);
+        s.reference_era = static_cast<std::size_t>(std::max_element(weight.begin(), weight.end()) - weight.begin());
     }
     // Every fitted planet needs enough observations for its six parameters (with room to estimate weights).
     std::vector<std::size_t> count(s.planets.size(), 0);
@@ -368,6 +376,7 @@ bool weighted_residual_jacobian(const ModelSetup& setup, const ModelRun& run, Ei
         jac.row(e) = -(std::cos(d.at.lat) * d.d_lon + dl * std::sin(d.at.lat) * d.d_lat) / (arcsec * f.sigma_lon_arcsec);
         jac.row(e + 1) = -d.d_lat / (arcsec * f.sigma_lat_arcsec);
     }
+    if (setup.options.era_systematics != "none") project_out_era_systematics(setup.era_view(), jac);
     return jac.allFinite();
 }
 
@@ -375,7 +384,9 @@ SkyPosition model_apparent(const ModelSetup& setup, const ModelRun& run, std::si
     return apparent_from(setup, run, index, t, setup.observer_helio_at(t));
 }
 
-bool weighted_residuals(const ModelSetup& setup, const ModelRun& run, Eigen::VectorXd& out) {
+namespace {
+// Weighted residuals before any era-systematics projection.
+bool raw_weighted_residuals(const ModelSetup& setup, const ModelRun& run, Eigen::VectorXd& out) {
     if (!run.ok()) return false;
     out.resize(static_cast<Eigen::Index>(2 * setup.obs.size()));
     for (std::size_t k = 0; k < setup.obs.size(); ++k) {
@@ -389,6 +400,13 @@ bool weighted_residuals(const ModelSetup& setup, const ModelRun& run, Eigen::Vec
     }
     return true;
 }
+}  // namespace
+
+bool weighted_residuals(const ModelSetup& setup, const ModelRun& run, Eigen::VectorXd& out) {
+    if (!raw_weighted_residuals(setup, run, out)) return false;
+    if (setup.options.era_systematics != "none") project_out_era_systematics(setup.era_view(), out);
+    return true;
+}
 
 std::vector<std::array<double, 2>> residuals_arcsec(const ModelSetup& setup, const ModelRun& run) {
     std::vector<std::array<double, 2>> out;
@@ -396,6 +414,14 @@ std::vector<std::array<double, 2>> residuals_arcsec(const ModelSetup& setup, con
         const FitObservation& f = setup.obs[k];
         const SkyPosition c = apparent_from(setup, run, run.planet_index[f.planet], f.time_days, setup.observer_helio[k]);
         out.push_back({wrap_pi(f.lon - c.lon) * std::cos(c.lat) / arcsec, (f.lat - c.lat) / arcsec});
+    }
+    Eigen::VectorXd r;
+    if (setup.options.era_systematics != "none" && raw_weighted_residuals(setup, run, r)) {
+        const std::vector<std::array<double, 2>> sys = fitted_era_systematics(setup.era_view(), r);
+        for (std::size_t k = 0; k < out.size(); ++k) {
+            out[k][0] -= sys[k][0];
+            out[k][1] -= sys[k][1];
+        }
     }
     return out;
 }

@@ -17,20 +17,13 @@
 #include <Eigen/Dense>
 
 #include "sim/exercise/exercise.hpp"
+#include "sim/model/era_systematics.hpp"
+#include "sim/model/fit_observation.hpp"
 #include "sim/model/wisdom_holman.hpp"
 #include "sim/physics/geometry.hpp"
 
 namespace wayward {
 
-struct FitObservation {
-    double time_days = 0.0;
-    std::size_t planet = 0;        // index into ModelSetup::planets (observed planets)
-    double lon = 0.0, lat = 0.0;   // radians
-    double sigma_lon_arcsec = 1.0, sigma_lat_arcsec = 1.0;  // weights in use
-    bool sigma_recorded = false;
-    std::size_t era = 0;           // index into ModelSetup::eras
-    bool rejected = false;         // set aside by outlier clipping
-};
 
 // The hidden body as fitted: in the observer's frame, with non-singular eccentricity components.
 struct HiddenOrbit {
@@ -49,6 +42,9 @@ struct ModelOptions {
     // How fits get their Jacobians: "variational" (the map's tangent map, one run for all parameters; the
     // Wisdom-Holman model only) or "differences" (forward differences, one run per parameter; any model).
     std::string derivatives = "variational";
+    // Era offsets (and drifts) as nuisance parameters, eliminated by projection (era_systematics.hpp): "none",
+    // "offsets" or "drifts".
+    std::string era_systematics = "none";
 };
 
 // The fitting model's integrators, selectable by name (ModelOptions::integrator).
@@ -72,6 +68,7 @@ struct ModelSetup {
     std::vector<std::size_t> planets;    // indices in `known` of the observed planets
     std::vector<std::string> eras;       // era labels, in order of first appearance
     std::vector<bool> era_records_sigma;
+    std::size_t reference_era = 0;       // the era without nuisance offsets (era_systematics.hpp)
     std::vector<FitObservation> obs;
     std::vector<Vec3> observer_helio;    // observer heliocentric position at each observation time
     Ephemeris inner;                     // full N-body known model (for the observer's track at other times)
@@ -79,6 +76,7 @@ struct ModelSetup {
     double t_begin = 0.0, t_end = 0.0;   // span the model must cover
     ModelOptions options;
     bool weights_estimated() const;      // some era has no recorded sigma
+    EraSystematicsView era_view() const { return {&obs, eras.size(), reference_era, options.era_systematics}; }
     Vec3 observer_helio_at(double t) const;
 };
 
@@ -127,9 +125,10 @@ bool weighted_residual_jacobian(const ModelSetup& setup, const ModelRun& run, Ei
 SkyPosition model_apparent(const ModelSetup& setup, const ModelRun& run, std::size_t index, double t);
 
 // Weighted residuals (O - C)/sigma for every kept observation: 2 per observation (lambda cos beta, beta).
-// Rejected observations give zeros. Returns false if the model run failed.
+// Rejected observations give zeros. With era systematics, the residuals after their nuisance fit is removed.
+// Returns false if the model run failed.
 bool weighted_residuals(const ModelSetup& setup, const ModelRun& run, Eigen::VectorXd& out);
-// Unweighted O - C in arcsec, per observation (lambda cos beta, beta).
+// Unweighted O - C in arcsec, per observation (lambda cos beta, beta), less the fitted era systematics if any.
 std::vector<std::array<double, 2>> residuals_arcsec(const ModelSetup& setup, const ModelRun& run);
 
 }  // namespace wayward

@@ -132,12 +132,15 @@ ModelRun run_best(const ModelSetup& setup, const ModelState& state, double t_end
 }
 
 // Offsets of one parameter vector's sky positions at every epoch from the predictions. False if the run failed.
+// With chi2 set and the fit able to weigh (FittedModel::chi2_of), the sample's chi2 from the same run too.
 bool offsets_of(const ModelSetup& setup, const FittedModel& fit, const Eigen::VectorXd& x, const Epochs& e,
-                const std::vector<Prediction>& at, std::vector<Offset>& d, const PredictHooks& hooks) {
+                const std::vector<Prediction>& at, std::vector<Offset>& d, const PredictHooks& hooks, double* chi2 = nullptr) {
     if (hooks.runs) ++*hooks.runs;
     d.assign(at.size(), {NAN, NAN});
-    const ModelRun r = run_model(setup, fit.state(setup, x), e.t_last);
+    const bool weigh = chi2 && fit.chi2_of;
+    const ModelRun r = run_model(setup, fit.state(setup, x), weigh ? std::max(e.t_last, setup.t_end) : e.t_last);
     if (!r.ok() || !r.hidden_index) return false;
+    if (weigh && !fit.chi2_of(x, r, *chi2)) *chi2 = NAN;
     for (std::size_t k = 0; k < at.size(); ++k) {
         const SkyPosition s = model_apparent(setup, r, *r.hidden_index, e.t[k]);
         d[k] = {wrap_pi(s.lon - at[k].lon) * std::cos(at[k].lat) / arcsec, (s.lat - at[k].lat) / arcsec};
@@ -192,28 +195,41 @@ std::vector<Eigen::MatrixXd> propagate_linearly(const ModelSetup& setup, const F
     return G;
 }
 
-// The sampled ellipse and the 90 % radius of one epoch's sample offsets.
-void summarise_samples(const std::vector<std::vector<Offset>>& d, std::size_t k, Prediction& p) {
-    std::vector<double> radii;
-    double sll = 0, slb = 0, sbb = 0;
-    for (const auto& dk : d) {
+// The sampled ellipse and the 90 % radius of one epoch's sample offsets, each sample with its weight (the
+// importance weights of sample_covariance; all equal where the map is linear).
+void summarise_samples(const std::vector<std::vector<Offset>>& d, const std::vector<double>& weight, std::size_t k, Prediction& p) {
+    std::vector<std::pair<double, double>> radii;  // (radius, weight)
+    double sll = 0, slb = 0, sbb = 0, total = 0;
+    for (std::size_t s = 0; s < d.size(); ++s) {
+        const auto& dk = d[s];
         if (dk.size() <= k) continue;
         const Offset& v = dk[k];
-        if (!std::isfinite(v[0]) || !std::isfinite(v[1])) continue;
-        radii.push_back(std::hypot(v[0], v[1]));
+        if (!std::isfinite(v[0]) || !std::isfinite(v[1]) || !(weight[s] >= 0.0)) continue;
+        const double w = weight[s];
+        radii.push_back({std::hypot(v[0], v[1]), w});
         // The exact inverse of offsets_of's offsets: the sample's own position.
         p.sample_lon.push_back(wrap_two_pi(p.lon + v[0] * arcsec / std::cos(p.lat)));
         p.sample_lat.push_back(p.lat + v[1] * arcsec);
-        sll += v[0] * v[0]; slb += v[0] * v[1]; sbb += v[1] * v[1];
+        p.sample_weight.push_back(w);
+        sll += w * v[0] * v[0]; slb += w * v[0] * v[1]; sbb += w * v[1] * v[1];
+        total += w;
     }
     p.samples_used = static_cast<int>(radii.size());
-    if (radii.empty()) return;
+    if (radii.empty() || !(total > 0.0)) return;
+    for (double& w : p.sample_weight) w /= total;
     std::sort(radii.begin(), radii.end());
-    // The ceil(0.9 n)-th smallest radius.
-    p.radius90_arcsec = radii[std::min(radii.size() - 1, static_cast<std::size_t>(std::ceil(0.9 * static_cast<double>(radii.size()))) - 1)];
-    const double m = static_cast<double>(radii.size());
+    // The smallest radius holding 90 % of the weight (with equal weights: the ceil(0.9 n)-th smallest radius).
+    double acc = 0.0;
+    p.radius90_arcsec = radii.back().first;
+    for (const auto& [r, w] : radii) {
+        acc += w / total;
+        if (acc >= 0.9 - 1e-12) {
+            p.radius90_arcsec = r;
+            break;
+        }
+    }
     double unused = 0.0;
-    ellipse_axes(sll / m, slb / m, sbb / m, p.sampled_semi_major_arcsec, p.sampled_semi_minor_arcsec, unused);
+    ellipse_axes(sll / total, slb / total, sbb / total, p.sampled_semi_major_arcsec, p.sampled_semi_minor_arcsec, unused);
 }
 
 bool cancelled(const PredictHooks& hooks) { return hooks.cancel && hooks.cancel->load(); }
@@ -221,32 +237,72 @@ bool cancelled(const PredictHooks& hooks) { return hooks.cancel && hooks.cancel-
 // The covariance samples' sky offsets. A pilot of the first samples is always run in full; where every pilot
 // sample lies within linear_tolerance of the semi-minor axis of where G puts it, at every epoch, the map from
 // parameters to sky is linear over the region the samples cover, and the rest are propagated by G (a matrix
-// product instead of a model run each). Otherwise all are run in full.
+// product instead of a model run each), all with equal weight. Otherwise all are run in full and weighted.
+//
+// Where the fit can profile (FittedModel::profile and chi2_of), the samples run in full are drawn in the hidden
+// body's parameters theta alone, from their marginal Gaussian, with the planets' corrections solved for each
+// (profile likelihood); each carries the importance weight exp(-(chi2 - chi2_best) / 2s + |z_theta|^2 / 2), the
+// profile posterior over the proposal, which is one for every sample where the problem is linear. The planets'
+// initial states enter very non-linearly over a long record (a change of 1e-5 in a velocity shifts a planet by
+// degrees after a hundred orbits), so drawing them from the joint Gaussian gives samples the data rule out by
+// thousands in chi2; profiling keeps the samples on the valley the data allow.
 void sample_covariance(const ModelSetup& setup, const FittedModel& fit, const Epochs& e, const PredictOptions& o,
                        const std::vector<Eigen::MatrixXd>& G, std::vector<Prediction>& out, const PredictHooks& hooks) {
     const Eigen::MatrixXd& C = fit.covariance;
     Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> es(C);
     const Eigen::MatrixXd L = es.eigenvectors() * es.eigenvalues().cwiseMax(0.0).cwiseSqrt().asDiagonal();
+    const bool profiled = static_cast<bool>(fit.profile) && static_cast<bool>(fit.chi2_of);
+    const auto np = static_cast<Eigen::Index>(fit.layout.planets), nt = C.rows() - np;
+    Eigen::MatrixXd Lt;
+    if (profiled) {
+        Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> et(C.bottomRightCorner(nt, nt));
+        Lt = et.eigenvectors() * et.eigenvalues().cwiseMax(0.0).cwiseSqrt().asDiagonal();
+    }
     Rng rng = make_rng(o.seed, "solve-samples");
-    std::vector<Eigen::VectorXd> xs;
+    std::vector<Eigen::VectorXd> xs, zs;
     for (int k = 0; k < o.samples; ++k) {
         Eigen::VectorXd z(C.rows());
         for (Eigen::Index j = 0; j < z.size(); ++j) z[j] = normal(rng);
         xs.push_back(fit.best + L * z);
+        zs.push_back(z);
     }
+    std::vector<Eigen::VectorXd> run_x(xs.size());  // the vector each sample run in full was run at
+    // Where the fit profiles, the linear picture of sample s is the same theta draw with the planets' corrections
+    // linearised, dp = -K dtheta (K = Jp^+ J_theta): the same draws whether a sample is run or propagated.
+    const bool linear_profile = profiled && fit.profile_gain.rows() == np && fit.profile_gain.cols() == nt;
     auto linear = [&](std::size_t s, std::vector<Offset>& d) {
         d.resize(out.size());
+        Eigen::VectorXd x = run_x[s].size() ? run_x[s] : xs[s];
+        if (!run_x[s].size() && linear_profile) {
+            const Eigen::VectorXd dt = Lt * zs[s].tail(nt);
+            x = fit.best;
+            x.tail(nt) += dt;
+            x.head(np) -= fit.profile_gain * dt;
+        }
         for (std::size_t k = 0; k < out.size(); ++k) {
-            const Eigen::Vector2d v = G[k] * (xs[s] - fit.best);
+            const Eigen::Vector2d v = G[k] * (x - fit.best);
             d[k] = {v[0], v[1]};
         }
     };
     std::vector<std::vector<Offset>> d(xs.size());
+    std::vector<double> chi2(xs.size(), NAN);
     std::atomic<std::size_t> sampled{0};
     auto run_in_full = [&](std::size_t from, std::size_t to) {
         parallel_for(to - from, o.threads ? o.threads : 1, [&](std::size_t i) {
             if (cancelled(hooks)) return;
-            offsets_of(setup, fit, xs[from + i], e, out, d[from + i], hooks);
+            const std::size_t s = from + i;
+            Eigen::VectorXd x = xs[s];
+            if (profiled) {
+                x = fit.best;
+                x.tail(nt) += Lt * zs[s].tail(nt);
+                if (hooks.runs) ++*hooks.runs;
+                if (!fit.profile(x)) {
+                    d[s].assign(out.size(), {NAN, NAN});
+                    return;
+                }
+            }
+            run_x[s] = x;
+            offsets_of(setup, fit, x, e, out, d[s], hooks, &chi2[s]);
             if (hooks.report)
                 hooks.report("sampling the covariance", 0.2 + 0.8 * static_cast<double>(++sampled) / static_cast<double>(xs.size()));
         });
@@ -269,13 +325,32 @@ void sample_covariance(const ModelSetup& setup, const FittedModel& fit, const Ep
         }
     }
     const bool linear_holds = pilot < xs.size() && complete && worst <= o.linear_tolerance;
+    std::vector<double> weight(xs.size(), 1.0);
     if (linear_holds) {
         for (std::size_t s = pilot; s < xs.size(); ++s) linear(s, d[s]);
     } else {
         run_in_full(pilot, xs.size());
+        if (fit.chi2_of) {
+            std::vector<double> lw(xs.size(), -INFINITY);
+            double top = -INFINITY;
+            for (std::size_t s = 0; s < xs.size(); ++s) {
+                if (!std::isfinite(chi2[s])) continue;  // a sample the model could not run: no weight
+                const double z2 = profiled ? zs[s].tail(nt).squaredNorm() : zs[s].squaredNorm();
+                lw[s] = -0.5 * (chi2[s] - fit.chi2_best) / fit.chi2_scale + 0.5 * z2;
+                top = std::max(top, lw[s]);
+            }
+            double sum = 0.0, sum2 = 0.0;
+            for (std::size_t s = 0; s < xs.size(); ++s) {
+                weight[s] = std::isfinite(top) && std::isfinite(lw[s]) ? std::exp(lw[s] - top) : 0.0;
+                sum += weight[s];
+                sum2 += weight[s] * weight[s];
+            }
+            const double ess = sum2 > 0.0 ? sum * sum / sum2 : 0.0;
+            for (Prediction& p : out) p.effective_samples = ess;
+        }
     }
     for (std::size_t k = 0; k < out.size(); ++k) {
-        summarise_samples(d, k, out[k]);
+        summarise_samples(d, weight, k, out[k]);
         out[k].samples_in_full = static_cast<int>(linear_holds ? pilot : xs.size());
         out[k].pilot_departure = pilot > 0 ? worst : NAN;
     }

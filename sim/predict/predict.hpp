@@ -9,6 +9,7 @@
 #pragma once
 
 #include <atomic>
+#include <cmath>
 #include <cstdint>
 #include <functional>
 #include <string>
@@ -53,6 +54,15 @@ struct FittedModel {
     Eigen::VectorXd best;
     Eigen::MatrixXd covariance;
     ModelState state(const ModelSetup& setup, const Eigen::VectorXd& x) const;
+    // Optional, for importance weights of the covariance samples where the map is not linear: chi2 of a parameter
+    // vector (data and priors) from a run that covers the data; the best fit's chi2 and the chi2/dof scale the
+    // covariance was given (1 where every sigma was recorded and the fit is good).
+    std::function<bool(const Eigen::VectorXd& x, const ModelRun& run, double& chi2)> chi2_of;
+    // Optional: replaces the planets' part of x by their corrections solved for x's hidden-body parameters
+    // (one Gauss-Newton step, one model run); false if the model could not be run.
+    std::function<bool(Eigen::VectorXd& x)> profile;
+    Eigen::MatrixXd profile_gain;  // K = Jp^+ J_theta at the best: the planets' linear response, dp = -K dtheta
+    double chi2_best = 0.0, chi2_scale = 1.0;
 };
 
 struct TrackPoint {
@@ -73,8 +83,10 @@ struct Prediction {
     int samples_used = 0;
     int samples_in_full = 0;        // of those, run through the model (the rest propagated linearly)
     double pilot_departure = NAN;   // the pilot samples' largest departure from linear, in semi-minor axes
-    // The samples' own sky positions (radians; in memory only), for a probability map of the region.
-    std::vector<double> sample_lon, sample_lat;
+    // The samples' own sky positions (radians; in memory only) and their weights (summing to one: equal where the
+    // map is linear, importance weights where it is not), for the probability map of the region.
+    std::vector<double> sample_lon, sample_lat, sample_weight;
+    double effective_samples = NAN;  // (sum w)^2 / sum w^2 of the importance weights; NaN when all are equal
     std::vector<TrackPoint> track;
 };
 

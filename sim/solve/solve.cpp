@@ -403,7 +403,8 @@ void set_covariance(Solution& sol, const Problem& prob, const LeastSquaresResult
     std::size_t kept = 0;
     for (const FitObservation& f : setup.obs) kept += f.rejected ? 0 : 1;
     const std::size_t m_eff = 2 * kept + prob.priors;
-    sol.dof = m_eff > l.size() ? m_eff - l.size() : 1;
+    const std::size_t fitted = l.size() + era_systematic_parameters(setup.era_view());  // the era nuisance parameters too
+    sol.dof = m_eff > fitted ? m_eff - fitted : 1;
     Eigen::MatrixXd C = normal_inverse(best.jacobian);
     sol.covariance_scaled = setup.weights_estimated();
     if (sol.covariance_scaled) C *= sol.chi2 / static_cast<double>(sol.dof);
@@ -517,6 +518,35 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     sol.fit.reference = prob.fit.reference;
     sol.fit.layout = prob.fit.layout;
     sol.fit.best = best.x;
+    // The exact chi2 of a sample, for its importance weight where the map is not linear. The copy of the problem
+    // counts no runs (the predictor counts its own) and keeps the setup alive with the solution.
+    {
+        Problem weigh = prob;
+        weigh.runs = nullptr;
+        sol.fit.chi2_of = [weigh, keep = known](const Eigen::VectorXd& x, const ModelRun& run, double& chi2) {
+            Eigen::VectorXd obs;
+            if (!weighted_residuals(*weigh.setup, run, obs)) return false;
+            Eigen::VectorXd r(static_cast<Eigen::Index>(weigh.residual_count()));
+            r.head(obs.size()) = obs;
+            weigh.prior_residuals(x, r);
+            chi2 = r.squaredNorm();
+            return std::isfinite(chi2);
+        };
+        // The planets' columns of the best fit's own Jacobian (its final weights): at the best, the step is zero.
+        const auto n_obs_rows = static_cast<Eigen::Index>(2 * setup.obs.size());
+        const auto jp_qr = std::make_shared<const Eigen::ColPivHouseholderQR<Eigen::MatrixXd>>(
+            Eigen::MatrixXd(best.jacobian.topLeftCorner(n_obs_rows, static_cast<Eigen::Index>(prob.layout().planets))));
+        sol.fit.profile = [weigh, jp_qr, keep = known](Eigen::VectorXd& x) {
+            Eigen::VectorXd r;
+            if (!weigh.evaluate(x, r)) return false;
+            const auto n_obs = static_cast<Eigen::Index>(2 * weigh.setup->obs.size());
+            x.head(jp_qr->cols()) += jp_qr->solve(Eigen::VectorXd(-r.head(n_obs)));
+            return x.allFinite();
+        };
+        sol.fit.profile_gain = jp_qr->solve(Eigen::MatrixXd(best.jacobian.topRightCorner(n_obs_rows, best.jacobian.cols() - jp_qr->cols())));
+        sol.fit.chi2_best = sol.chi2;
+        sol.fit.chi2_scale = sol.covariance_scaled || sol.covariance_widened ? sol.chi2 / static_cast<double>(sol.dof) : 1.0;
+    }
 
     // ---- prediction: the one predictor, at the solve's epoch ----
     PredictHooks hooks;

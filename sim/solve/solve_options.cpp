@@ -40,6 +40,8 @@ std::string SolveOptions::describe() const {
     }
     s << (circular ? ", circular orbit" : ", eccentric orbit (prior sigma " + std::to_string(eccentricity_prior_sigma).substr(0, 5) + " on e)")
       << (coplanar ? ", coplanar" : ", inclined (prior sigma " + std::to_string(inclination_prior_rad / deg).substr(0, 4) + " deg on the tilt)");
+    if (model.era_systematics == "offsets") s << ", era offsets fitted";
+    if (model.era_systematics == "drifts") s << ", era offsets and drifts fitted";
     return s.str();
 }
 
