@@ -88,6 +88,7 @@ inline std::string replace(std::string s, const std::string& from, const std::st
 inline fs::path fresh_dir(const std::string& name) {
     const fs::path p = fs::temp_directory_path() / ("wayward-test-" + name + "-" + std::to_string(::getpid()));
     fs::remove_all(p);
+    fs::remove_all(p.string() + "-answer-key");  // a key left by an earlier run under the same pid
     return p;
 }
 

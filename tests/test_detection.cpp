@@ -92,6 +92,7 @@ TEST_CASE("detection: every tutorial seed is detected") {
 TEST_CASE("detection: a record with nothing to find gets no pointing unless asked, and says why") {
     const fs::path dir = fs::temp_directory_path() / ("wayward-detect-" + std::to_string(::getpid()));
     fs::remove_all(dir);
+    fs::remove_all(dir.string() + "-answer-key");  // a key left by an earlier run under the same pid
     fs::create_directories(dir);
     const std::string text = testing::read(testing::source_path("scenarios/quick.toml"));
     testing::write(dir / "null.toml",

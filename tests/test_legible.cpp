@@ -173,6 +173,7 @@ TEST_CASE("no command overwrites what an earlier command wrote: solve --out, sco
     namespace fs = std::filesystem;
     const fs::path dir = fs::temp_directory_path() / ("wayward-legible-chain-" + std::to_string(::getpid()));
     fs::remove_all(dir);
+    fs::remove_all(dir.string() + "-answer-key");  // a key left by an earlier run under the same pid
     const std::string d = dir.string();
     REQUIRE(testing::run_cli("new " + testing::source_path("scenarios/tutorial.toml") + " --seed 2 --out " + d).status == 0);
     std::map<std::string, std::string> seen;

@@ -31,6 +31,7 @@ namespace {
 fs::path scratch(const std::string& name) {
     const fs::path p = fs::temp_directory_path() / ("wayward-rel-" + name + "-" + std::to_string(::getpid()));
     fs::remove_all(p);
+    fs::remove_all(p.string() + "-answer-key");  // a key left by an earlier run under the same pid
     fs::create_directories(p);
     return p;
 }

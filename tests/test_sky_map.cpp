@@ -129,6 +129,7 @@ TEST_CASE("leftover private folders of a killed sky map writer are swept, links 
     namespace fs = std::filesystem;
     const fs::path dir = fs::temp_directory_path() / ("wayward-sky-sweep-" + std::to_string(::getpid()));
     fs::remove_all(dir);
+    fs::remove_all(dir.string() + "-answer-key");  // a key left by an earlier run under the same pid
     const fs::path left = dir / (std::string(".skymap.fits") + temporary_marker + "Zq81Xy");
     fs::create_directories(left);
     std::ofstream(left / "map.fits") << "half a map";

@@ -41,6 +41,7 @@ const fs::path& work_dir() {
     static const fs::path dir = [] {
         fs::path d = fs::temp_directory_path() / ("wayward-viewer-trainee-" + std::to_string(::getpid()));
         fs::remove_all(d);
+        fs::remove_all(d.string() + "-answer-key");  // a key left by an earlier run under the same pid
         fs::create_directories(d);
         return d;
     }();

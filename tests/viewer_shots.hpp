@@ -29,6 +29,7 @@ struct Shot {
 inline std::filesystem::path fresh_shot_dir(const std::string& tag) {
     const std::filesystem::path d = std::filesystem::temp_directory_path() / (tag + "-" + std::to_string(::getpid()));
     std::filesystem::remove_all(d);
+    std::filesystem::remove_all(d.string() + "-answer-key");  // a key left by an earlier run under the same pid
     std::filesystem::create_directories(d);
     return d;
 }

@@ -98,7 +98,10 @@ Command add_score(CLI::App& app) {
     c->add_option("--lon", scr.lon_deg, "your predicted longitude (deg)");
     c->add_option("--lat", scr.lat_deg, "your predicted latitude (deg)");
     c->add_option("--epoch", scr.epoch_year, "the year of your prediction");
-    c->add_option("--prediction", scr.prediction_file, "a TOML file with lon_deg, lat_deg, epoch_year");
+    c->add_option("--prediction", scr.prediction_file,
+                  "a TOML file with lon_deg, lat_deg, epoch_year, and optionally radius_arcmin or sigma_major_arcmin, sigma_minor_arcmin, position_angle_deg");
+    c->add_option("--radius", scr.radius_arcmin, "your prediction's region: the radius (arcmin) holding 90% of a circular Gaussian");
+    c->add_option("--ellipse", scr.ellipse, "your prediction's region: 1-sigma semi-axes (arcmin) and the major axis' position angle (deg, from +β through +λ): A,B,PA");
     c->add_option("--window", scr.window_years, "luck-curve half-window (years)")->capture_default_str();
     return {c, [args] { return run_score(*args, std::cout); }};
 }

@@ -329,6 +329,55 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     return 0;
 }
 
+namespace {
+// A trainee's stated region as a covariance of (lambda cos beta, beta) in arcsec^2: a circle holding 90 % (sigma =
+// R / sqrt(2 ln 10)), or an ellipse of 1-sigma semi-axes a >= b whose major axis has position angle pa (from +beta
+// through +lambda). `fail` reports a bad value with its field.
+void set_region(Prediction& p, std::optional<double> radius_arcmin, std::optional<std::array<double, 3>> ellipse,
+                const std::function<void(const std::string&, const std::string&)>& fail, const std::string& radius_field,
+                const std::string& ellipse_field) {
+    if (radius_arcmin && ellipse) fail(ellipse_field, "give a radius or an ellipse, not both");
+    if (radius_arcmin) {
+        if (!(*radius_arcmin > 0.0 && *radius_arcmin < 180.0 * 60.0)) fail(radius_field, "must be a radius in (0, 10800) arcmin");
+        const double sigma = *radius_arcmin * 60.0 / std::sqrt(2.0 * std::log(10.0));
+        p.cov_ll = p.cov_bb = sigma * sigma;
+        p.cov_lb = 0.0;
+    } else if (ellipse) {
+        const auto [a, b, pa] = *ellipse;
+        if (!(a > 0.0 && a < 10800.0 && b > 0.0 && b <= a)) fail(ellipse_field, "needs semi-axes 0 < B <= A < 10800 arcmin");
+        if (!(pa >= 0.0 && pa < 180.0)) fail(ellipse_field, "needs a position angle in [0, 180) degrees");
+        const double s = std::sin(pa * deg), c = std::cos(pa * deg);  // the major axis in (lambda cos beta, beta)
+        const double a2 = a * a * 3600.0, b2 = b * b * 3600.0;
+        p.cov_ll = a2 * s * s + b2 * c * c;
+        p.cov_bb = a2 * c * c + b2 * s * s;
+        p.cov_lb = (a2 - b2) * s * c;
+    } else {
+        return;
+    }
+    ellipse_axes(p.cov_ll, p.cov_lb, p.cov_bb, p.semi_major_arcsec, p.semi_minor_arcsec, p.orientation_deg);
+}
+
+std::optional<std::array<double, 3>> parse_ellipse(const std::string& text) {
+    if (text.empty()) return std::nullopt;
+    std::array<double, 3> v{};
+    std::size_t start = 0;
+    for (int i = 0; i < 3; ++i) {
+        const std::size_t comma = text.find(',', start);
+        if ((i < 2) != (comma != std::string::npos)) throw InputError("", 0, "--ellipse", "must be A,B,PA (three numbers)");
+        const std::string part = text.substr(start, i < 2 ? comma - start : std::string::npos);
+        try {
+            std::size_t used = 0;
+            v[static_cast<std::size_t>(i)] = std::stod(part, &used);
+            if (used != part.size()) throw std::invalid_argument(part);
+        } catch (const std::exception&) {
+            throw InputError("", 0, "--ellipse", "'" + part + "' is not a number (A,B,PA)");
+        }
+        start = comma + 1;
+    }
+    return v;
+}
+}  // namespace
+
 int run_score(const ScoreArgs& args, std::ostream& out) {
     if (!(args.window_years > 0.0 && args.window_years <= 5000.0)) throw InputError("", 0, "--window", "must be in (0, 5000] years");
     const Exercise ex = load_exercise(args.dir);
@@ -344,6 +393,8 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
         p.lon = wrap_two_pi(*args.lon_deg * deg);
         p.lat = *args.lat_deg * deg;
         p.epoch_year = *args.epoch_year;
+        set_region(p, args.radius_arcmin, parse_ellipse(args.ellipse),
+                   [](const std::string& field, const std::string& why) { throw InputError("", 0, field, why); }, "--radius", "--ellipse");
         source = "your prediction";
     } else if (!args.prediction_file.empty()) {
         const toml::table t = detail::parse_toml(detail::read_text_file(args.prediction_file), args.prediction_file);
@@ -352,6 +403,14 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
         p.lat = r.required_number("lat_deg") * deg;
         if (!(p.lat >= -pi / 2 && p.lat <= pi / 2)) r.fail("lat_deg", "must be in [-90, 90]");
         p.epoch_year = r.required_number("epoch_year");
+        std::optional<double> radius;
+        std::optional<std::array<double, 3>> ellipse;
+        if (r.has("radius_arcmin")) radius = r.required_number("radius_arcmin");
+        if (r.has("sigma_major_arcmin") || r.has("sigma_minor_arcmin") || r.has("position_angle_deg"))
+            ellipse = std::array<double, 3>{r.required_number("sigma_major_arcmin"), r.required_number("sigma_minor_arcmin"),
+                                            r.required_number("position_angle_deg")};
+        set_region(p, radius, ellipse, [&r](const std::string& field, const std::string& why) { r.fail(field, why); }, "radius_arcmin",
+                   ellipse && !radius ? "sigma_major_arcmin" : "position_angle_deg");
         r.finish();
         source = args.prediction_file;
     } else {
@@ -395,7 +454,14 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
                                : near_star(ex.brief, p);
         if (const std::string c = near_star_caution(n, p.epoch_year); !c.empty()) out << c << "\n";
     }
-    if (sc.mahalanobis) out << "Normalised error (Mahalanobis): " << *sc.mahalanobis << " sigma\n";
+    if (!sc.mahalanobis && (own || !args.prediction_file.empty()))
+        out << "(no region given with this prediction, so no normalised error, rank or covered probability: --radius or --ellipse add one)\n";
+    if (sc.mahalanobis) {
+        out << "Normalised error (Mahalanobis): " << *sc.mahalanobis << " sigma\n";
+        out << "Rank of the truth in the stated region: the smallest region holding it holds " << std::setprecision(1) << 100.0 * *sc.truth_rank
+            << "% of the probability\n";
+        out << "Probability the field covered, by the stated region: " << 100.0 * *sc.field_probability << "%\n" << std::setprecision(3);
+    }
     out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
         << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "
         << std::setprecision(3) << sc.closest_arcmin << " arcmin in " << std::setprecision(2) << sc.closest_year << "\n";

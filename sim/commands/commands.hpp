@@ -70,6 +70,8 @@ struct ScoreArgs {
     std::string key;                  // default DIR-answer-key/answer_key.toml beside DIR
     std::optional<double> lon_deg, lat_deg, epoch_year;  // a trainee's own prediction
     std::string prediction_file;      // or a small TOML file with lon_deg, lat_deg, epoch_year
+    std::optional<double> radius_arcmin;  // the trainee's region: 90 % radius of a circular Gaussian
+    std::string ellipse;              // or "A,B,PA": 1-sigma semi-axes (arcmin), position angle (deg)
     double window_years = 60.0;
 };
 int run_score(const ScoreArgs& args, std::ostream& out);

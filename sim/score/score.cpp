@@ -5,10 +5,30 @@
 #include <cmath>
 #include <cstdio>
 
+#include <boost/math/quadrature/gauss.hpp>
+
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
 
 namespace wayward {
+
+double gaussian_mass_in_circle(double cll, double clb, double cbb, double r_arcsec) {
+    // In the frame of the ellipse's axes (variances a2 >= b2), in polar coordinates: P = (1 / 2 pi sqrt(a2 b2))
+    // int_0^2pi (1 - exp(-r^2 q(t) / 2)) / q(t) dt with q(t) = cos^2 t / a2 + sin^2 t / b2, the radial integral
+    // done in closed form; the angle by 30-point Gauss-Legendre on each quarter (the integrand is smooth and
+    // symmetric), Boost.Math's quadrature.
+    const double tr = cll + cbb, det = cll * cbb - clb * clb;
+    if (!(det > 0.0) || !(r_arcsec >= 0.0)) return NAN;
+    const double disc = std::sqrt(std::max(0.0, 0.25 * tr * tr - det));
+    const double a2 = 0.5 * tr + disc, b2 = std::max(0.5 * tr - disc, det / (0.5 * tr + disc));
+    auto integrand = [&](double t) {
+        const double c = std::cos(t), s = std::sin(t);
+        const double q = c * c / a2 + s * s / b2;
+        return -std::expm1(-0.5 * r_arcsec * r_arcsec * q) / q;
+    };
+    const double quarter = boost::math::quadrature::gauss<double, 30>::integrate(integrand, 0.0, 0.5 * pi);
+    return std::clamp(4.0 * quarter / (2.0 * pi * std::sqrt(a2 * b2)), 0.0, 1.0);
+}
 
 Score score_prediction(const Brief& brief, const AnswerKey& key, const Prediction& p, double window_years) {
     return score_prediction(brief, integrate_truth(brief, key), p, window_years);
@@ -36,6 +56,8 @@ Score score_prediction(const Brief& brief, const TruthEphemeris& truth_eph, cons
         const double dl = wrap_pi(s.true_lon - p.lon) * std::cos(p.lat) / arcsec, db = (s.true_lat - p.lat) / arcsec;
         const double d2 = (p.cov_bb * dl * dl - 2 * p.cov_lb * dl * db + p.cov_ll * db * db) / det;
         s.mahalanobis = std::sqrt(std::max(d2, 0.0));
+        s.truth_rank = 1.0 - std::exp(-0.5 * std::max(d2, 0.0));
+        s.field_probability = gaussian_mass_in_circle(p.cov_ll, p.cov_lb, p.cov_bb, brief.field_radius_deg * 3600.0);
     }
     // Luck curve over the window (clipped to the span), on the prediction's own track where it has one.
     const double from = std::max(lo_year, p.epoch_year - window_years), to = std::min(hi_year, p.epoch_year + window_years);

@@ -28,12 +28,20 @@ struct Score {
     double field_radius_deg = 0.0;
     bool hit = false;
     std::optional<double> mahalanobis;        // sqrt(d^T Sigma^-1 d) with d = (dlambda cos beta, dbeta)
+    // Where the prediction states a region (its 2-D Gaussian): the truth's rank in it, the probability held by the
+    // smallest region of the stated distribution that includes the truth, 1 - exp(-d^2 / 2); and the probability
+    // the field (a circle of the brief's field radius at the predicted point) covered.
+    std::optional<double> truth_rank, field_probability;
     std::vector<LuckPoint> luck;
     double luck_fraction_inside = 0.0;        // of the window, separation <= field radius
     double closest_year = 0.0, closest_arcmin = 0.0;
     bool luck_from_track = false;             // false: a single point held fixed over the window
     std::string hidden_name;
 };
+
+// The probability a centred 2-D Gaussian of covariance (cll, clb, cbb) (arcsec^2) puts inside a circle of radius
+// r_arcsec about its centre.
+double gaussian_mass_in_circle(double cll, double clb, double cbb, double r_arcsec);
 
 // Scores a prediction (track optional) against the truth. The window defaults to +- 60 years, clipped to the span.
 Score score_prediction(const Brief& brief, const AnswerKey& key, const Prediction& prediction, double window_years = 60.0);
