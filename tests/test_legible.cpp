@@ -262,3 +262,16 @@ TEST_CASE("a log axis over less than a decade labels at least three values") {
     for (const char* l : {"3", "30", "4", "40"}) CHECK(std::find(b.labels.begin(), b.labels.end(), l) == b.labels.end());
     CHECK(std::find(b.labels.begin(), b.labels.end(), "10") != b.labels.end());
 }
+
+TEST_CASE("an axis of whole things (nights) labels whole numbers only") {
+    // Three nights: the plain nice ticks step by a half; whole numbers only keep 1, 2 and 3.
+    const plot::detail::Axis plain = plot::detail::linear_axis(true, 1.0, 3.0, std::nullopt, 6);
+    REQUIRE(plain.ticks.size() >= 2);
+    CHECK(plain.ticks[1] - plain.ticks[0] < 1.0);
+    const plot::detail::Axis a = plot::detail::whole_number_ticks(plain);
+    CHECK(a.ticks == std::vector<double>{1.0, 2.0, 3.0});
+    CHECK(a.labels == std::vector<std::string>{"1", "2", "3"});
+    // Thirty nights: the nice step is already whole; nothing changes.
+    const plot::detail::Axis wide = plot::detail::linear_axis(true, 1.0, 30.0, std::nullopt, 6);
+    CHECK(plot::detail::whole_number_ticks(wide).ticks == wide.ticks);
+}

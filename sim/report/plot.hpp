@@ -75,6 +75,7 @@ struct Panel {
     bool legend = true;
     bool log_y = false;  // non-positive y values are skipped
     bool log_x = false;  // a log10 x axis; non-positive x values are skipped
+    bool whole_x = false;  // x counts whole things (nights): ticks at whole numbers only
 };
 
 // Panels stacked vertically, sharing the width (and the x axis when share_x).

@@ -85,6 +85,15 @@ std::pair<double, double> sanitize_range(double lo, double hi) {
 // of the padding, so an axis ends on a round number when that costs little but data never sits on the
 // frame (our own rule; Heckbert's "loose" labelling always snaps, which can waste most of a step). With
 // `sticky_zero` an end of the data at exactly 0 is the end of the axis (histogram and bar baselines).
+Axis whole_number_ticks(Axis a) {
+    if (a.log || a.ticks.size() < 2) return a;
+    const double step = a.ticks[1] - a.ticks[0];
+    if (step >= 1.0 - 1e-9) return a;  // already whole numbers (a nice step of at least 1 keeps integer ticks)
+    a.ticks = ticks_with_step(a.lo, a.hi, 1.0);
+    a.labels = linear_labels(a.ticks, 1.0);
+    return a;
+}
+
 Axis linear_axis(bool have_data, double dlo, double dhi, std::optional<std::pair<double, double>> fixed, int target,
                  bool sticky_zero) {
     Axis a;

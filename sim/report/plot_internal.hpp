@@ -102,6 +102,8 @@ struct Axis {
 Axis linear_axis(bool have_data, double dlo, double dhi, std::optional<std::pair<double, double>> fixed, int target,
                  bool sticky_zero = false);
 Axis log_axis(bool have_data, double dlo, double dhi, std::optional<std::pair<double, double>> fixed, int target);
+// The same axis with ticks at whole numbers only (a count, a night): a step below one becomes one.
+Axis whole_number_ticks(Axis a);
 // Fewer ticks until the widest label fits between neighbours (horizontal axes); make(target) builds the axis.
 Axis fitted_x_axis(cairo_t* cr, double length, const std::function<Axis(int)>& make);
 

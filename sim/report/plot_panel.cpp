@@ -76,7 +76,9 @@ FigureLayout layout_figure(cairo_t* cr, const Figure& f) {
         const Panel& p = panels[i];
         const DataRange& d = (f.share_x && !p.x_range && shared.have) ? shared : xd[i];
         return fitted_x_axis(cr, width, [&](int target) {
-            return p.log_x ? log_axis(d.have, d.lo, d.hi, p.x_range, target) : linear_axis(d.have, d.lo, d.hi, p.x_range, target);
+            if (p.log_x) return log_axis(d.have, d.lo, d.hi, p.x_range, target);
+            const Axis a = linear_axis(d.have, d.lo, d.hi, p.x_range, target);
+            return p.whole_x ? whole_number_ticks(a) : a;
         });
     };
     double left = 0.0;

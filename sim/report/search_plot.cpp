@@ -62,8 +62,9 @@ void save_search_png(const RehearsalResult& r, const Telescope& tel, double epoc
     plot::Panel covered;
     covered.title = "Probability covered (fields searched on clear nights)";
     covered.x_label = "night";
+    covered.whole_x = true;
     covered.y_label = "fraction of the prior";
-    covered.y_range = std::pair{0.0, 1.0};
+    covered.y_range = std::pair{0.0, 1.04};  // a little room above 1, so a full coverage line is not drawn on the frame
     plot::Series c;
     c.label = "covered";
     c.style = plot::Style::line_points;
