@@ -2,8 +2,16 @@
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <string>
+
+#include <unistd.h>
 
 #include "sim/solve/minima.hpp"
+#include "sim/solve/solve.hpp"
+#include "solve_helpers.hpp"
+#include "test_helpers.hpp"
 
 using namespace wayward;
 
@@ -93,4 +101,38 @@ TEST_CASE("minima: Laplace weights and probabilities") {
     CHECK(p[1] / p[0] == doctest::Approx(std::exp(-1.0)).epsilon(1e-12));
     CHECK(p[0] + p[1] == doctest::Approx(1.0).epsilon(1e-15));
     CHECK(std::isnan(p[2]));
+}
+
+TEST_CASE("minima: every other minimum gets its own prediction, kept through solution.toml") {
+    // Hard, seed 1: three distinct minima, none demanded by the record (the table shows them all the same).
+    const Scenario sc = load_scenario(testing::source_path("scenarios/hard.toml"));
+    const auto m = testing::make_exercise(sc, 1);
+    SolveOptions o;
+    o.threads = 2;
+    o.samples = 0;
+    const Solution s = solve(m.ex.exercise, o);
+    REQUIRE(s.minima.size() >= 2);
+    CHECK_FALSE(s.minima.front().prediction);  // the best's prediction is the solution's own
+    double total = 0.0;
+    for (std::size_t i = 0; i < s.minima.size(); ++i) {
+        CAPTURE(i);
+        total += std::isfinite(s.minima[i].probability) ? s.minima[i].probability : 0.0;
+        if (i == 0) continue;
+        REQUIRE(s.minima[i].prediction);
+        CHECK(std::isfinite(s.minima[i].prediction->lon));
+        CHECK(s.minima[i].prediction->semi_major_arcsec >= s.minima[i].prediction->semi_minor_arcsec);
+        CHECK(s.minima[i].prediction->semi_minor_arcsec > 0.0);
+    }
+    CHECK(total == doctest::Approx(1.0).epsilon(1e-9));
+    const std::filesystem::path file = std::filesystem::temp_directory_path() / ("wayward-minima-" + std::to_string(::getpid()) + ".toml");
+    std::ofstream(file) << solution_toml(s);
+    const Solution back = load_solution(file.string());
+    REQUIRE(back.minima.size() == s.minima.size());
+    for (std::size_t i = 1; i < s.minima.size(); ++i) {
+        REQUIRE(back.minima[i].prediction);
+        CHECK(back.minima[i].prediction->lon == doctest::Approx(s.minima[i].prediction->lon).epsilon(1e-12));
+        CHECK(back.minima[i].probability == doctest::Approx(s.minima[i].probability).epsilon(1e-12));
+        CHECK(back.minima[i].flags == s.minima[i].flags);
+    }
+    std::filesystem::remove(file);
 }

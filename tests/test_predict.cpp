@@ -165,6 +165,7 @@ TEST_CASE("covariance samples are propagated linearly only where a pilot run thr
     CHECK(sol_h.prediction.samples_in_full == sol_h.prediction.samples_used);
 }
 
+TEST_SUITE("slow") {
 TEST_CASE("importance-weighted samples: equal weights where the problem is linear, and a usable sample where it is not") {
     SolveOptions o;
     o.threads = 2;
@@ -198,3 +199,4 @@ TEST_CASE("importance-weighted samples: equal weights where the problem is linea
         CHECK(std::abs(p.sampled_semi_minor_arcsec / p.semi_minor_arcsec - 1.0) < 0.15);
     }
 }
+}  // TEST_SUITE("slow")

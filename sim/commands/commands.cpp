@@ -283,6 +283,12 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
             << "  " << pad(table_number("%.4g", std::hypot(m.orbit.k, m.orbit.h)), 7) << "  " << pad(table_number("%.8g", m.chi2), 14) << "  "
             << pad(std::isfinite(m.probability) ? table_number("%.3g", m.probability) : std::string("-"), 11)
             << (m.converged ? "" : "  (not converged)") << "\n";
+    for (std::size_t i = 1; i < s.minima.size(); ++i)
+        if (const auto& mp = s.minima[i].prediction)
+            out << "  minimum " << i + 1 << " would put the body at λ = " << table_number("%.2f", mp->lon / deg) << " deg, β = "
+                << table_number("%.2f", mp->lat / deg) << " deg (1-sigma " << table_number("%.4g", mp->semi_major_arcsec / 60) << " x "
+                << table_number("%.4g", mp->semi_minor_arcsec / 60) << " arcmin), "
+                << table_number("%.3g", separation(mp->lon, mp->lat, s.prediction.lon, s.prediction.lat) / deg) << " deg from the best's\n";
     for (std::size_t i = 0; i < s.minima.size(); ++i)
         for (const std::string& f : s.minima[i].flags)
             out << "  implausible: minimum " << i + 1 << " (a = " << table_number("%.4g", s.minima[i].orbit.semi_major_axis) << " au): " << f << "\n";

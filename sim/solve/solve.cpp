@@ -457,6 +457,7 @@ void weigh_minima(Solution& sol, const Problem& prob, const Brief& brief) {
         const bool ok = m.parameters.size() == static_cast<Eigen::Index>(prob.layout().size()) &&
                         (lsq.jacobian || prob.evaluate(m.parameters, r)) && problem_jacobian(lsq, m.parameters, r, J, runs);
         log_weights.push_back(ok ? laplace_log_weight(m.chi2, J, scale) : NAN);
+        if (ok) m.covariance = normal_inverse(J) * scale;  // its own region, for its own prediction
     }
     const std::vector<double> p = probabilities_from_log_weights(log_weights);
     for (std::size_t i = 0; i < sol.minima.size(); ++i) sol.minima[i].probability = p[i];
@@ -554,6 +555,25 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
     hooks.cancel = progress.cancel;
     if (progress.report) hooks.report = [&](const std::string& stage, double f) { progress.report(stage, 0.82 + 0.18 * f); };
     sol.prediction = predict(setup, sol.fit, {epoch_year}, prediction_options(o), hooks).front();
+    // Every other minimum's own prediction at the epoch (position and linear ellipse), so the user sees where
+    // each plausible solution would send the telescope.
+    for (std::size_t i = 1; i < sol.minima.size(); ++i) {
+        Minimum& m = sol.minima[i];
+        if (m.covariance.rows() != m.parameters.size() || cancelled()) continue;
+        FittedModel other;
+        other.reference = sol.fit.reference;
+        other.layout = sol.fit.layout;
+        other.best = m.parameters;
+        other.covariance = m.covariance;
+        PredictOptions po = prediction_options(o);
+        po.samples = 0;
+        po.track_years = 0.0;
+        try {
+            m.prediction = predict(setup, other, {epoch_year}, po, PredictHooks{nullptr, progress.cancel, &runs}).front();
+        } catch (const std::runtime_error&) {
+            // A minimum whose orbit cannot be integrated to the epoch has no prediction; the table says so.
+        }
+    }
     sol.setup = std::shared_ptr<const ModelSetup>(known, &known->setup);
     sol.model_runs = runs.load();
     report("done", 1.0);
@@ -627,6 +647,12 @@ std::string solution_toml(const Solution& s) {
         t.insert("chi2", m.chi2);
         t.insert("converged", m.converged);
         if (std::isfinite(m.probability)) t.insert("probability", m.probability);
+        if (m.prediction) {
+            t.insert("predicted_lon_deg", m.prediction->lon / deg);
+            t.insert("predicted_lat_deg", m.prediction->lat / deg);
+            t.insert("semi_major_arcmin", m.prediction->semi_major_arcsec / 60.0);
+            t.insert("semi_minor_arcmin", m.prediction->semi_minor_arcsec / 60.0);
+        }
         toml::array flags;
         for (const std::string& f : m.flags) flags.push_back(f);
         t.insert("flags", flags);
@@ -731,6 +757,14 @@ Solution load_solution(const std::string& path) {
         m.chi2 = r.number_or("chi2", 0.0);
         m.converged = r.boolean("converged").value_or(false);
         m.probability = r.number_or("probability", NAN);
+        if (r.has("predicted_lon_deg")) {
+            Prediction p;
+            p.lon = wrap_two_pi(r.number_or("predicted_lon_deg", 0.0) * deg);
+            p.lat = r.number_or("predicted_lat_deg", 0.0) * deg;
+            p.semi_major_arcsec = r.number_or("semi_major_arcmin", 0.0) * 60.0;
+            p.semi_minor_arcsec = r.number_or("semi_minor_arcmin", 0.0) * 60.0;
+            m.prediction = p;
+        }
         m.flags = r.strings("flags").value_or(std::vector<std::string>{});
         r.finish();
         s.minima.push_back(m);

@@ -37,6 +37,8 @@ struct Minimum {
     Eigen::VectorXd parameters;     // the whole parameter vector (planets' corrections included); in memory only
     double probability = NAN;       // relative probability among the minima (Laplace approximation, minima.hpp)
     std::vector<std::string> flags; // physical implausibilities (minima.hpp), empty when none
+    Eigen::MatrixXd covariance;     // its own (Laplace) covariance; in memory only
+    std::optional<Prediction> prediction;  // where it puts the body at the solve's epoch (not for the best: see Solution)
 };
 
 struct Solution {
