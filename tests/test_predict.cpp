@@ -166,7 +166,7 @@ TEST_CASE("covariance samples are propagated linearly only where a pilot run thr
 }
 
 TEST_SUITE("slow") {
-TEST_CASE("importance-weighted samples: equal weights where the problem is linear, and a usable sample where it is not") {
+TEST_CASE("importance-weighted samples: equal weights where the problem is linear and a usable sample where it is not") {
     SolveOptions o;
     o.threads = 2;
     // Tutorial, every sample run through the model: the profile posterior equals the proposal, so the weights
