@@ -62,8 +62,7 @@ TEST_CASE("tangent-map derivatives agree with central differences for every para
         fit.layout.gm_star = setup.known.gm[0];
         const Eigen::VectorXd x = trial_parameters(setup, fit.layout);
         const StateOf state_of = [&](const Eigen::VectorXd& v) { return fit.state(setup, v); };
-        std::vector<Eigen::Index> columns(static_cast<std::size_t>(x.size()));
-        for (Eigen::Index j = 0; j < x.size(); ++j) columns[static_cast<std::size_t>(j)] = j;
+        const std::vector<Eigen::Index> columns = parameter_columns(static_cast<std::size_t>(x.size()));
         REQUIRE(has_tangent_map(setup, columns.size()));
         const ModelRun run = run_model_tangent(setup, state_of, x, columns, fit.layout.seed_steps(), setup.t_end);
         REQUIRE(run.ok());

@@ -122,8 +122,7 @@ void bm_model_jacobian(benchmark::State& state, const std::string& scenario, con
     p.step = fit.layout.steps();
     p.evaluate = [&](const Eigen::VectorXd& v, Eigen::VectorXd& r) { return weighted_residuals(setup, run_model(setup, state_of(v), setup.t_end), r); };
     if (derivatives == "variational") {
-        std::vector<Eigen::Index> all(p.parameters);
-        for (std::size_t j = 0; j < p.parameters; ++j) all[j] = static_cast<Eigen::Index>(j);
+        const std::vector<Eigen::Index> all = parameter_columns(p.parameters);
         p.jacobian = [&, all](const Eigen::VectorXd& v, Eigen::MatrixXd& jac) {
             return weighted_residual_jacobian(setup, run_model_tangent(setup, state_of, v, all, fit.layout.seed_steps(), setup.t_end), jac);
         };

@@ -160,8 +160,7 @@ KnownFit fit_known(const Exercise& ex, const ModelOptions& options, const std::f
     };
     if (has_tangent_map(setup, prob.parameters)) {
         // The planets' map to the state is linear: the seed's differences are exact with any step.
-        std::vector<Eigen::Index> columns(prob.parameters);
-        for (std::size_t j = 0; j < prob.parameters; ++j) columns[j] = static_cast<Eigen::Index>(j);
+        const std::vector<Eigen::Index> columns = parameter_columns(prob.parameters);
         prob.jacobian = [&, columns](const Eigen::VectorXd& x, Eigen::MatrixXd& jac) {
             ++fit.model_runs;
             return weighted_residual_jacobian(setup, run_model_tangent(setup, state_of, x, columns, prob.step, setup.t_end), jac);

@@ -238,6 +238,12 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
     return run;
 }
 
+std::vector<Eigen::Index> parameter_columns(std::size_t count, Eigen::Index first) {
+    std::vector<Eigen::Index> c(count);
+    for (std::size_t j = 0; j < count; ++j) c[j] = first + static_cast<Eigen::Index>(j);
+    return c;
+}
+
 bool has_tangent_map(const ModelSetup& setup, std::size_t parameters) {
     return setup.options.integrator == "wisdom-holman" && setup.options.derivatives == "variational" && parameters > 0 &&
            parameters <= max_tangent_parameters;
@@ -290,10 +296,15 @@ std::string ModelRun::problem() const {
 }
 
 namespace {
-SkyPosition apparent_from(const ModelSetup& setup, const ModelRun& run, std::size_t index, double t, const Vec3& observer_helio) {
+// The observer's barycentric position at t: the central pair's barycentre from the run, plus the observer's
+// offset from it (its heliocentric position times the star's share of the pair's mass).
+Vec3 observer_at(const ModelSetup& setup, const ModelRun& run, double t, const Vec3& observer_helio) {
     const double gm_star = setup.known.gm[0], gm_obs = setup.known.gm[setup.observer];
-    const double star_share = gm_star / (gm_star + gm_obs);
-    const Vec3 observer = run.outer.position(0, t) + star_share * observer_helio;
+    return run.outer.position(0, t) + gm_star / (gm_star + gm_obs) * observer_helio;
+}
+
+SkyPosition apparent_from(const ModelSetup& setup, const ModelRun& run, std::size_t index, double t, const Vec3& observer_helio) {
+    const Vec3 observer = observer_at(setup, run, t, observer_helio);
     const Vec3 rel = setup.options.light_time == LightTime::corrected ? solve_light_time(run.outer, index, t, observer).relative
                                                                        : Vec3(run.outer.position(index, t) - observer);
     return to_sky(setup.frame.to_frame(rel));
@@ -333,9 +344,7 @@ Eigen::MatrixXd position_tangent(const ModelRun& run, std::size_t body, double t
 
 SkyTangent apparent_tangent(const ModelSetup& setup, const ModelRun& run, std::size_t index, double t, const Vec3& observer_helio) {
     if (run.tangent_parameters == 0) throw std::invalid_argument("apparent_tangent: the model run has no tangents");
-    const double gm_star = setup.known.gm[0], gm_obs = setup.known.gm[setup.observer];
-    const double star_share = gm_star / (gm_star + gm_obs);
-    const Vec3 observer = run.outer.position(0, t) + star_share * observer_helio;
+    const Vec3 observer = observer_at(setup, run, t, observer_helio);
     // rel = x_target(t - tau) - x_pair(t) - const, tau = |rel| / c. Differentiating:
     // d rel = A - v_target (u . d rel) / c with A = T_target(t - tau) - T_pair(t), u = rel / |rel|, so
     // d rel = A - v (u^T A) / (c + u . v) (Sherman-Morrison).

@@ -104,6 +104,8 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
 
 // ---- Derivatives from the variational equations of the map (its tangent map) ----
 using StateOf = std::function<ModelState(const Eigen::VectorXd&)>;
+// The columns first, first + 1, ..., first + count - 1: which parameters a tangent run differentiates.
+std::vector<Eigen::Index> parameter_columns(std::size_t count, Eigen::Index first = 0);
 // True when the setup's model gives derivatives by its tangent map for this many parameters.
 bool has_tangent_map(const ModelSetup& setup, std::size_t parameters);
 // run_model for the state state_of(x), with the derivatives of every node with respect to x[columns] (at most

@@ -152,8 +152,7 @@ bool offsets_of(const ModelSetup& setup, const FittedModel& fit, const Eigen::Ve
 bool tangent_sky_jacobians(const ModelSetup& setup, const FittedModel& fit, const Epochs& e, const std::vector<Prediction>& at,
                            std::vector<Eigen::MatrixXd>& G, const PredictHooks& hooks) {
     if (hooks.runs) ++*hooks.runs;
-    std::vector<Eigen::Index> all(static_cast<std::size_t>(fit.best.size()));
-    for (Eigen::Index j = 0; j < fit.best.size(); ++j) all[static_cast<std::size_t>(j)] = j;
+    const std::vector<Eigen::Index> all = parameter_columns(static_cast<std::size_t>(fit.best.size()));
     const StateOf state_of = [&](const Eigen::VectorXd& x) { return fit.state(setup, x); };
     const ModelRun r = run_model_tangent(setup, state_of, fit.best, all, fit.layout.seed_steps(), e.t_last);
     if (!r.ok() || !r.hidden_index) return false;

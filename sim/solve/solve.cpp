@@ -49,17 +49,27 @@ struct Problem {
     HiddenOrbit hidden(const Eigen::VectorXd& x) const { return fit.layout.hidden(x); }
     ModelState state(const Eigen::VectorXd& x) const { return fit.state(*setup, x); }
     std::size_t residual_count() const { return 2 * setup->obs.size() + priors; }
-    void prior_residuals(const Eigen::VectorXd& x, Eigen::VectorXd& r) const {
+    // The priors' residuals after the observations' (and, given jac and its columns, their rows of the Jacobian):
+    // one list, so that the residuals and their derivatives cannot fall out of step.
+    void prior_residuals(const Eigen::VectorXd& x, Eigen::VectorXd& r, Eigen::MatrixXd* jac = nullptr,
+                         const std::vector<Eigen::Index>* columns = nullptr) const {
         const HiddenParameters& l = layout();
         Eigen::Index k = static_cast<Eigen::Index>(2 * setup->obs.size());
-        if (prior_a_sigma > 0.0) r[k++] = (std::exp(x[l.i_a]) - prior_a) / prior_a_sigma;
+        auto put = [&](double residual, int parameter, double derivative) {
+            r[k] = residual;
+            if (jac && columns)
+                for (std::size_t q = 0; q < columns->size(); ++q)
+                    if ((*columns)[q] == parameter) (*jac)(k, static_cast<Eigen::Index>(q)) = derivative;
+            ++k;
+        };
+        if (prior_a_sigma > 0.0) put((std::exp(x[l.i_a]) - prior_a) / prior_a_sigma, l.i_a, std::exp(x[l.i_a]) / prior_a_sigma);
         if (l.i_k >= 0) {
-            r[k++] = x[l.i_k] / options.eccentricity_prior_sigma;
-            r[k++] = x[l.i_h] / options.eccentricity_prior_sigma;
+            put(x[l.i_k] / options.eccentricity_prior_sigma, l.i_k, 1.0 / options.eccentricity_prior_sigma);
+            put(x[l.i_h] / options.eccentricity_prior_sigma, l.i_h, 1.0 / options.eccentricity_prior_sigma);
         }
         if (l.i_ix >= 0) {
-            r[k++] = x[l.i_ix] / options.inclination_prior_rad;
-            r[k++] = x[l.i_iy] / options.inclination_prior_rad;
+            put(x[l.i_ix] / options.inclination_prior_rad, l.i_ix, 1.0 / options.inclination_prior_rad);
+            put(x[l.i_iy] / options.inclination_prior_rad, l.i_iy, 1.0 / options.inclination_prior_rad);
         }
     }
     bool evaluate(const Eigen::VectorXd& x, Eigen::VectorXd& r) const {
@@ -82,23 +92,8 @@ struct Problem {
         if (!weighted_residual_jacobian(*setup, run, obs)) return false;
         jac = Eigen::MatrixXd::Zero(static_cast<Eigen::Index>(residual_count()), static_cast<Eigen::Index>(columns.size()));
         jac.topRows(obs.rows()) = obs;
-        // The priors' rows, in prior_residuals' order.
-        const HiddenParameters& l = layout();
-        Eigen::Index k = obs.rows();
-        auto row_of = [&](int parameter, double derivative) {
-            for (std::size_t q = 0; q < columns.size(); ++q)
-                if (columns[q] == parameter) jac(k, static_cast<Eigen::Index>(q)) = derivative;
-            ++k;
-        };
-        if (prior_a_sigma > 0.0) row_of(l.i_a, std::exp(x[l.i_a]) / prior_a_sigma);
-        if (l.i_k >= 0) {
-            row_of(l.i_k, 1.0 / options.eccentricity_prior_sigma);
-            row_of(l.i_h, 1.0 / options.eccentricity_prior_sigma);
-        }
-        if (l.i_ix >= 0) {
-            row_of(l.i_ix, 1.0 / options.inclination_prior_rad);
-            row_of(l.i_iy, 1.0 / options.inclination_prior_rad);
-        }
+        Eigen::VectorXd unused(static_cast<Eigen::Index>(residual_count()));
+        prior_residuals(x, unused, &jac, &columns);
         return jac.allFinite();
     }
 };
@@ -110,8 +105,7 @@ LeastSquaresProblem as_lsq(const Problem& p) {
     q.step = p.layout().steps();
     q.evaluate = [&p](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return p.evaluate(x, r); };
     if (p.has_jacobian(q.parameters)) {
-        std::vector<Eigen::Index> all(q.parameters);
-        for (std::size_t j = 0; j < q.parameters; ++j) all[j] = static_cast<Eigen::Index>(j);
+        const std::vector<Eigen::Index> all = parameter_columns(q.parameters);
         q.jacobian = [&p, all](const Eigen::VectorXd& x, Eigen::MatrixXd& jac) { return p.jacobian(x, all, jac); };
     }
     return q;
@@ -290,8 +284,7 @@ std::vector<LeastSquaresResult> fit_starts(const KnownFit& known, const Problem&
         }
         return true;
     };
-    std::vector<Eigen::Index> theta_columns(static_cast<std::size_t>(n_theta));
-    for (Eigen::Index j = 0; j < n_theta; ++j) theta_columns[static_cast<std::size_t>(j)] = n_planet + j;
+    const std::vector<Eigen::Index> theta_columns = parameter_columns(static_cast<std::size_t>(n_theta), n_planet);
     std::vector<LeastSquaresResult> fits(order.size());
     std::atomic<std::size_t> fitted{0};
     parallel_for(order.size(), threads, [&](std::size_t s) {
@@ -442,9 +435,14 @@ void check_fit(Solution& sol, const KnownFit& known, const KnownWeights& before,
     }
 }
 
+// The chi2/dof scale the solve gave its covariance (1 where every sigma was recorded and the fit is good).
+double covariance_scale(const Solution& sol) {
+    return sol.covariance_scaled || sol.covariance_widened ? sol.chi2 / static_cast<double>(sol.dof) : 1.0;
+}
+
 // ---- every minimum's probability and physical plausibility (minima.hpp) ----
 void weigh_minima(Solution& sol, const Problem& prob, const Brief& brief) {
-    const double scale = sol.covariance_scaled || sol.covariance_widened ? sol.chi2 / static_cast<double>(sol.dof) : 1.0;
+    const double scale = covariance_scale(sol);
     const LeastSquaresProblem lsq = as_lsq(prob);
     std::vector<double> log_weights;
     for (Minimum& m : sol.minima) {
@@ -546,7 +544,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
         };
         sol.fit.profile_gain = jp_qr->solve(Eigen::MatrixXd(best.jacobian.topRightCorner(n_obs_rows, best.jacobian.cols() - jp_qr->cols())));
         sol.fit.chi2_best = sol.chi2;
-        sol.fit.chi2_scale = sol.covariance_scaled || sol.covariance_widened ? sol.chi2 / static_cast<double>(sol.dof) : 1.0;
+        sol.fit.chi2_scale = covariance_scale(sol);
     }
 
     // ---- prediction: the one predictor, at the solve's epoch ----
