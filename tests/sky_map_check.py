@@ -121,4 +121,30 @@ with tempfile.TemporaryDirectory() as work:
           f"too few samples: exit {r.returncode}, {r.stderr.strip()}")
     check(not any(".wayward-tmp-" in f for f in os.listdir(ex)), "no temporaries left in the folder")
 
+    # --- A record in the record form, imported and solved: its map is in ICRS ('C'), as planning software reads it.
+    rec, imp = os.path.join(work, "record"), os.path.join(work, "imported")
+    r = run("new", os.path.join(src, "scenarios", "quick.toml"), "--seed", "3", "--out", os.path.join(work, "ex2"), "--record", rec)
+    assert r.returncode == 0, r.stderr
+    r = run("import", rec, "--out", imp)
+    assert r.returncode == 0, r.stderr
+    r = run("solve", imp, "--sky-map", "--quiet", "--threads", "2")
+    assert r.returncode == 0, r.stderr
+    m = re.search(r"ICRS \(astrometric\) at \S+ TDB: RA \S+ \((\S+) deg\), Dec \S+ \((\S+) deg\)", r.stdout)
+    check(m is not None, "the imported solve prints its pointing in ICRS")
+    ra, dec = float(m.group(1)), float(m.group(2))
+    prob, header = hp.read_map(os.path.join(imp, "skymap.fits"), nest=None, h=True, dtype=np.float64)
+    comments = " ".join(str(v) for k, v in header if k == "COMMENT")
+    header = dict(header)
+    nside = hp.npix2nside(prob.size)
+    check(header.get("COORDSYS") == "C" and "FRAME: ICRS" in comments, "an imported record's map: COORDSYS C (ICRS), said in a comment")
+    check(abs(prob.sum() - 1.0) < 1e-9, "its probabilities sum to 1 (healpy.read_map)")
+    peak = int(np.argmax(prob))
+    own = int(hp.ang2pix(nside, ra, dec, nest=True, lonlat=True))
+    check(prob[own] >= 0.9 * prob[peak], f"the printed ICRS pointing's pixel holds {prob[own] / prob[peak]:.4f} of the peak (at least 0.9)")
+    with open(os.path.join(imp, "skymap_regions.csv")) as fh:
+        rows = list(csv.DictReader(fh))
+    lon0, lat0 = hp.pix2ang(nside, int(rows[0]["pixel"]), nest=True, lonlat=True)
+    check(abs(float(rows[0]["ra_deg"]) - lon0) < 1e-5 and abs(float(rows[0]["dec_deg"]) - lat0) < 1e-5,
+          "its regions CSV lists ra_deg, dec_deg at healpy's pixel centres")
+
 sys.exit(1 if failures else 0)

@@ -25,7 +25,7 @@ fs::path make_dir(const std::string& name, std::uint64_t seed = 1) {
     fs::remove_all(p);
     fs::remove_all(p.string() + "-answer-key");  // a key left by an earlier run under the same pid
     std::ostringstream sink;
-    run_new({testing::source_path("scenarios/tutorial.toml"), seed, p.string(), "", false}, sink);
+    run_new({testing::source_path("scenarios/tutorial.toml"), seed, p.string(), "", "", false}, sink);
     return p;
 }
 

@@ -50,9 +50,9 @@ TEST_CASE("exercise folders are byte-identical for the same seed and differ for 
     const fs::path a = fresh_dir("det-a"), b = fresh_dir("det-b"), c = fresh_dir("det-c");
     std::ostringstream sink;
     const std::string sc = testing::source_path("scenarios/tutorial.toml");
-    run_new({sc, 5, a.string(), "", false}, sink);
-    run_new({sc, 5, b.string(), "", false}, sink);
-    run_new({sc, 6, c.string(), "", false}, sink);
+    run_new({sc, 5, a.string(), "", "", false}, sink);
+    run_new({sc, 5, b.string(), "", "", false}, sink);
+    run_new({sc, 6, c.string(), "", "", false}, sink);
     const auto fa = exercise_files(a), fb = exercise_files(b), fc = exercise_files(c);
     for (std::size_t k = 0; k < fa.size(); ++k) {
         CAPTURE(fa[k]);
@@ -69,7 +69,7 @@ TEST_CASE("exercise folders are byte-identical for the same seed and differ for 
 TEST_CASE("the answer key's SHA-256 is sealed in the brief; a changed key is refused") {
     const fs::path dir = fresh_dir("key");
     std::ostringstream sink;
-    run_new({testing::source_path("scenarios/tutorial.toml"), 2, dir.string(), "", false}, sink);
+    run_new({testing::source_path("scenarios/tutorial.toml"), 2, dir.string(), "", "", false}, sink);
     const Exercise ex = load_exercise(dir.string());
     const std::string key = (key_dir(dir) / "answer_key.toml").string();
     CHECK(sha256_file(key) == ex.brief.answer_key_sha256);

@@ -61,7 +61,7 @@ TEST_CASE("score region: a trainee's circle and ellipse are scored by rank and f
     fs::remove_all(dir);
     fs::remove_all(dir.string() + "-answer-key");  // a key left by an earlier run under the same pid
     std::ostringstream sink;
-    run_new({testing::source_path("scenarios/tutorial.toml"), 1, dir.string(), "", false}, sink);
+    run_new({testing::source_path("scenarios/tutorial.toml"), 1, dir.string(), "", "", false}, sink);
     const Exercise ex = load_exercise(dir.string());
     const AnswerKey key = open_answer_key(ex.brief, exercise_paths(dir.string()).answer_key());
     const double year = ex.brief.search_epochs_year.front();

@@ -101,7 +101,7 @@ void Analysis::load_solution_file() {
     if (!std::filesystem::exists(path, ec)) return;
     try {
         Solution s = load_solution(path);
-        if (s.exercise_sha256 != exercise_->brief.answer_key_sha256) {
+        if (s.exercise_sha256 != exercise_->brief.identity_sha256()) {
             solution_file_problem = path + " belongs to another exercise (its exercise_sha256 differs from the brief's)";
             return;
         }

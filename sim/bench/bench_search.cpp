@@ -45,7 +45,7 @@ Solution solution_with_sigma(double sigma_arcmin) {
     const SearchWorld& w = world();
     const double y = w.ex->exercise.brief.search_epochs_year.front();
     Solution s;
-    s.exercise_sha256 = w.ex->exercise.brief.answer_key_sha256;
+    s.exercise_sha256 = w.ex->exercise.brief.identity_sha256();
     s.prediction.epoch_year = y;
     const TrackPoint t = w.truth->at_year(y);
     s.prediction.lon = t.lon;

@@ -127,7 +127,7 @@ void search_case(const CampaignSpec& spec, const Exercise& ex, const TruthEpheme
         return;
     }
     Solution team;
-    team.exercise_sha256 = ex.brief.answer_key_sha256;
+    team.exercise_sha256 = ex.brief.identity_sha256();
     team.prediction = p;
     RehearsalOptions opt;
     opt.nights = spec.search.nights;

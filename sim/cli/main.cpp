@@ -10,6 +10,7 @@
 
 #include "sim/commands/commands.hpp"
 #include "sim/commands/search_command.hpp"
+#include "sim/commands/record_command.hpp"
 #include "sim/base/errors.hpp"
 #include "sim/report/plot.hpp"
 
@@ -44,8 +45,20 @@ Command add_new(CLI::App& app) {
     c->add_option("--seed", nw.seed, "seed of the invented system and its observations (default: a secret random one, kept only in the answer key)");
     c->add_option("--out", nw.out_dir, "exercise folder to write")->required();
     c->add_option("--key-out", nw.key_dir, "folder for the answer key (default OUT-answer-key beside OUT; keep it from the trainee)");
+    c->add_option("--record", nw.record_dir, "also write the exercise in the record form `import` reads (ICRS, TDB) into this folder");
     c->add_flag("--force", nw.force, "overwrite an existing exercise");
     return {c, [args] { return run_new(*args, std::cout); }};
+}
+
+// `wayward import`
+Command add_import(CLI::App& app) {
+    auto args = std::make_shared<ImportArgs>();
+    ImportArgs& im = *args;
+    auto* c = app.add_subcommand("import", "make an exercise folder from a survey record: ICRS positions, the observer's positions, a record.toml");
+    c->add_option("record", im.record_dir, "record folder (record.toml, positions.csv, observer.csv)")->required();
+    c->add_option("--out", im.out_dir, "exercise folder to write")->required();
+    c->add_flag("--force", im.force, "overwrite an existing exercise");
+    return {c, [args] { return run_import(*args, std::cout); }};
 }
 
 // `wayward residuals`
@@ -178,7 +191,7 @@ int main(int argc, char** argv) {
     CLI::App app{"wayward: rehearse the prediction of an unseen planet from the pull it exerts on planets you can see"};
     app.set_version_flag("--version", std::string("wayward ") + WAYWARD_VERSION);
     app.require_subcommand(1);
-    const std::vector<Command> commands = {add_ephemeris(app), add_new(app), add_residuals(app), add_solve(app), add_score(app), add_search(app), add_campaign(app), add_merge(app), add_budget(app)};
+    const std::vector<Command> commands = {add_ephemeris(app), add_new(app), add_import(app), add_residuals(app), add_solve(app), add_score(app), add_search(app), add_campaign(app), add_merge(app), add_budget(app)};
     // Every command that draws a figure takes --svg: each PNG gets an SVG copy beside it.
     bool svg = false;
     for (const Command& c : commands)

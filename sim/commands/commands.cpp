@@ -5,6 +5,8 @@
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
+
+#include <erfa.h>
 #include <filesystem>
 #include <iomanip>
 #include <limits>
@@ -18,6 +20,8 @@
 #include "sim/report/text_table.hpp"
 #include "sim/fit/known_fit.hpp"
 #include "sim/commands/sky_map_command.hpp"
+#include "sim/commands/record_command.hpp"
+#include "sim/record/record.hpp"
 #include "sim/report/luck_report.hpp"
 #include "sim/report/report.hpp"
 #include "sim/truth/generate.hpp"
@@ -27,15 +31,11 @@
 namespace wayward {
 
 namespace {
-// Julian Day of a Gregorian calendar date at 0 h: Meeus, Astronomical Algorithms (2nd ed.), chapter 7, eq. 7.1.
-// Hand-written because the library does not link ERFA (only the viewer and the tests do) and this is three lines.
+// Julian Day of a Gregorian calendar date at 0 h (ERFA's eraCal2jd; NaN for a date it refuses).
 double gregorian_jd(int year, int month, int day) {
-    if (month <= 2) {
-        year -= 1;
-        month += 12;
-    }
-    const int a = year / 100, b = 2 - a + a / 4;
-    return std::floor(365.25 * (year + 4716)) + std::floor(30.6001 * (month + 1)) + day + b - 1524.5;
+    double djm0 = 0.0, djm = 0.0;
+    if (eraCal2jd(year, month, day, &djm0, &djm) != 0) return std::nan("");
+    return djm0 + djm;
 }
 
 bool whole_number(const std::string& s, double& v) {
@@ -56,7 +56,7 @@ double days_from_time_text(const std::string& text, double epoch0_year, const st
     if (std::sscanf(text.c_str(), "%d-%d-%d%c", &y, &m, &d, &tail) == 3 && m >= 1 && m <= 12 && d >= 1 && d <= 31) {
         // The program's years are Julian epochs (2000.0 is JD 2451545.0, a year 365.25 days).
         const double julian_epoch = 2000.0 + (gregorian_jd(y, m, d) - 2451545.0) / julian_year_days;
-        return days_from_year(epoch0_year, julian_epoch);
+        if (std::isfinite(julian_epoch)) return days_from_year(epoch0_year, julian_epoch);
     }
     throw InputError("", 0, flag, "\"" + text + "\" is not a time: give days after epoch 0 (365.25 or 365.25d), a year (1955.25yr) or a date (1955-03-21)");
 }
@@ -120,7 +120,14 @@ int run_new(const NewArgs& args, std::ostream& out) {
     const Truth truth = generate(sc, seed, &run);
     const ObservationSet obs = observe(sc, truth, run.ephemeris, seed);
     const Brief brief = make_brief(sc, truth, seed);
+    if (!args.record_dir.empty()) {
+        std::error_code ec;
+        for (const std::string& d : {paths.dir, paths.key_dir})
+            if (std::filesystem::weakly_canonical(args.record_dir, ec) == std::filesystem::weakly_canonical(d, ec))
+                throw InputError(args.record_dir, 0, "--record", "must be a folder of its own (not the exercise's or the key's)");
+    }
     write_exercise(paths, sc, truth, obs, brief, run.ephemeris, args.force);
+    if (!args.record_dir.empty()) write_record_folder(format_record(load_exercise(paths.dir)), args.record_dir);
 
     out << std::defaultfloat << std::setprecision(6);
     out << "Exercise written to " << paths.dir << " (answer key sealed in " << paths.key_dir << ")\n";
@@ -147,6 +154,8 @@ int run_new(const NewArgs& args, std::ostream& out) {
     out << "Search epoch(s):";
     for (double y : sc.plan.search_epochs_year) out << " " << y;
     out << "; field radius " << sc.plan.field_radius_deg << " deg\n";
+    if (!args.record_dir.empty())
+        out << "The same exercise in the record form (ICRS, TDB; `wayward import` reads it): " << args.record_dir << "\n";
     // For the trainer who runs `new` (the trainee's folder carries nothing of it): a search epoch at which the
     // hidden body itself stands within the elongation limit cannot end at the telescope.
     for (const HiddenAtSearch& h : hidden_at_search_epochs(truth, sc, run.ephemeris))
@@ -329,6 +338,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
             << p.samples_used - p.samples_in_full << " were propagated linearly)\n";
     out << "  search field radius: " << ex.brief.field_radius_deg * 60 << " arcmin\n";
     out << std::defaultfloat;
+    out << icrs_pointing_text(ex.brief, p);
     if (const std::string c = near_star_caution(near_star(ex.brief, p), p.epoch_year); !c.empty()) out << c << "\n";
     out << "Wrote " << out_file << (replacing ? " (replacing the earlier solution there; --out FILE keeps both)\n" : "\n");
     if (args.sky_map) write_sky_map(args.dir, ex.brief, ex.brief.scenario_name, p, out);
@@ -387,6 +397,9 @@ std::optional<std::array<double, 3>> parse_ellipse(const std::string& text) {
 int run_score(const ScoreArgs& args, std::ostream& out) {
     if (!(args.window_years > 0.0 && args.window_years <= 5000.0)) throw InputError("", 0, "--window", "must be in (0, 5000] years");
     const Exercise ex = load_exercise(args.dir);
+    if (ex.brief.imported())
+        throw InputError(ex.brief.file, 0, "exercise.record_sha256",
+                         "this folder was imported from a survey record: there is no truth to score against");
     Prediction p;
     std::string source;
     const bool own = args.lon_deg || args.lat_deg || args.epoch_year;
@@ -423,9 +436,9 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
         const std::string path = args.solution.empty() ? args.dir + "/solution.toml" : args.solution;
         if (!std::filesystem::exists(path)) throw InputError(path, 0, "", "no solution here: run `wayward solve " + args.dir + "` first, or give --lon --lat --epoch");
         const Solution s = load_solution(path);
-        if (s.exercise_sha256 != ex.brief.answer_key_sha256)
+        if (s.exercise_sha256 != ex.brief.identity_sha256())
             throw InputError(path, 0, "solution.exercise_sha256",
-                             "does not match " + ex.brief.file + "'s answer_key_sha256: this solution belongs to another exercise, or the brief was changed");
+                             "does not match the exercise named by " + ex.brief.file + ": this solution belongs to another exercise, or the brief was changed");
         p = s.prediction;
         source = path;
     }

@@ -28,6 +28,7 @@ struct NewArgs {
     std::optional<std::uint64_t> seed;  // none: a secret random seed, written only into the answer key
     std::string out_dir;
     std::string key_dir;  // default: OUT-answer-key beside OUT
+    std::string record_dir;  // also write the exercise in the record form here (none: not written)
     bool force = false;
 };
 // Makes an exercise folder and prints its summary.

@@ -156,11 +156,15 @@ std::string summary_text(const RehearsalResult& r, const Brief& b, const Telesco
 int run_search(const SearchArgs& args, std::ostream& out) {
     // Read and check everything first: nothing is written unless all of it is good.
     const Exercise ex = load_exercise(args.dir);
+    if (ex.brief.imported())
+        throw InputError(ex.brief.file, 0, "exercise.record_sha256",
+                         "this folder was imported from a survey record: with no sealed truth there is no hidden body to place "
+                         "among the stars, so the search cannot be rehearsed here");
     const std::string sol_path = args.solution.empty() ? args.dir + "/solution.toml" : args.solution;
     if (!std::filesystem::exists(sol_path))
         throw InputError(sol_path, 0, "", "no solution here: run `wayward solve " + args.dir + "` first, or give --solution");
     const Solution solution = load_solution(sol_path);
-    if (solution.exercise_sha256 != ex.brief.answer_key_sha256)
+    if (solution.exercise_sha256 != ex.brief.identity_sha256())
         throw InputError(sol_path, 0, "solution.exercise_sha256", "this solution belongs to another exercise");
     Telescope tel;
     if (!args.telescope_file.empty()) tel = load_telescope(args.telescope_file);

@@ -7,6 +7,8 @@
 #include "sim/base/format.hpp"
 #include "sim/io/fileio.hpp"
 #include "sim/predict/sky_map.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/record/record.hpp"
 #include "sim/report/sky_map_file.hpp"
 
 namespace wayward {
@@ -23,7 +25,16 @@ void write_sky_map(const std::string& dir, const Brief& brief, const std::string
         throw std::runtime_error("sky map: only " + std::to_string(p.sample_lon.size()) + " of the covariance samples could be integrated");
     // The resolution follows the sampled ellipse, the one the map is made of.
     const int nside = sky_map_nside(p.sampled_semi_minor_arcsec);
-    std::vector<SkySample> samples = equal_weight_samples(p.sample_lon, p.sample_lat);
+    // An imported record's map is made in ICRS: the samples are rotated there first.
+    const Eigen::Matrix3d to_fitting = brief.imported() ? icrs_to_fitting_frame(brief) : Eigen::Matrix3d::Identity();
+    std::vector<double> lon = p.sample_lon, lat = p.sample_lat;
+    if (brief.imported())
+        for (std::size_t i = 0; i < lon.size(); ++i) {
+            const SkyPosition q = to_sky(to_fitting.transpose() * unit_vector(lon[i], lat[i]));
+            lon[i] = q.lon;
+            lat[i] = q.lat;
+        }
+    std::vector<SkySample> samples = equal_weight_samples(lon, lat);
     if (p.sample_weight.size() == samples.size())
         for (std::size_t i = 0; i < samples.size(); ++i) samples[i].weight = p.sample_weight[i];  // importance weights
     const SkyMap map = make_sky_map(samples, nside);
@@ -31,13 +42,14 @@ void write_sky_map(const std::string& dir, const Brief& brief, const std::string
     const std::vector<SkyRegion> regions = sky_regions(map, ranked, {0.5, 0.9, 0.99});
     const std::string csv_path = dir + "/" + sky_map_regions_name;
     const std::string fits_path = dir + "/" + sky_map_fits_name;
-    write_sky_map_fits(fits_path, map, {scenario_name, p.epoch_year, static_cast<int>(p.sample_lon.size())});
-    write_file_atomic(csv_path, sky_map_regions_csv(brief, p.epoch_year, map, ranked, regions));
+    write_sky_map_fits(fits_path, map, {scenario_name, p.epoch_year, static_cast<int>(p.sample_lon.size()), brief.imported()});
+    write_file_atomic(csv_path, sky_map_regions_csv(brief, p.epoch_year, map, ranked, regions, brief.imported() ? &to_fitting : nullptr));
     out << "Sky map at " << fmt("%.2f", p.epoch_year) << " (nside " << nside << ", " << fmt("%.2f", sky_map_pixel_arcmin(nside))
         << " arcmin pixels, " << p.sample_lon.size() << " samples): 50/90/99 % regions " << fmt("%.4g", regions[0].area_deg2) << " / "
         << fmt("%.4g", regions[1].area_deg2) << " / " << fmt("%.4g", regions[2].area_deg2) << " square degrees; wrote " << fits_path << ", "
         << csv_path << "\n";
-    out << "  (in the observer planet's orbital plane, not ICRS; pixels inside the elongation limit are marked near_star. A real "
+    out << (brief.imported() ? "  (in ICRS, astrometric; pixels" : "  (in the observer planet's orbital plane, not ICRS; pixels")
+        << " inside the elongation limit are marked near_star. A real "
            "observatory's own safety rules and scheduling tools take precedence.)\n";
 }
 

@@ -83,6 +83,25 @@ Elements read_elements(TableReader& r) {
     return el;
 }
 
+toml::table star_table(const std::string& name, double mass) {
+    toml::table t;
+    t.insert("name", name);
+    t.insert("mass", mass);
+    return t;
+}
+
+StarTable read_star_table(TableReader& root) {
+    const toml::table* star = root.table("star");
+    if (!star) throw InputError(root.file(), 1, "star", "the [star] table is missing");
+    TableReader r(*star, root.file(), "star");
+    StarTable out;
+    out.name = r.required_name("name");
+    out.mass = r.required_number("mass");
+    if (!(out.mass > 0.0)) r.fail("mass", "must be positive (solar masses)");
+    r.finish();
+    return out;
+}
+
 }  // namespace detail
 
 using detail::elements_table;
@@ -96,12 +115,14 @@ std::string format_brief(const Brief& b) {
     ex.insert("scenario", b.scenario_name);
     ex.insert("epoch0_year", b.epoch0_year);
     ex.insert("span_years", b.span_years);
-    ex.insert("answer_key_sha256", b.answer_key_sha256);
+    if (b.imported()) {
+        ex.insert("record_sha256", b.record_sha256);
+        ex.insert("frame", b.frame);
+    } else {
+        ex.insert("answer_key_sha256", b.answer_key_sha256);
+    }
     root.insert("exercise", ex);
-    toml::table star;
-    star.insert("name", b.star_name);
-    star.insert("mass", b.star_mass);
-    root.insert("star", star);
+    root.insert("star", detail::star_table(b.star_name, b.star_mass));
     toml::array planets;
     for (const BriefPlanet& p : b.planets) {
         toml::table t = elements_table(p.elements);
@@ -132,6 +153,10 @@ std::string format_brief(const Brief& b) {
     obs.insert("era", eras);
     root.insert("observing", obs);
     if (b.telescope) root.insert("telescope", detail::telescope_table(*b.telescope));
+    if (b.imported())
+        return "# Wayward exercise brief, imported from a survey record: what the team knows. There is no answer key.\n"
+               "# Reference frame: the ecliptic and equinox of J2000.0 (from ICRS); times are TDB; the record's SHA-256 is below.\n" +
+               toml_text(root);
     return "# Wayward exercise brief: what the team knows. The answer key is sealed; its SHA-256 is below.\n" + toml_text(root);
 }
 
@@ -156,28 +181,13 @@ std::string format_observer_csv(const std::vector<ObserverFix>& track) {
 
 std::vector<ObserverFix> parse_observer_csv(const std::string& text, const std::string& file) {
     std::vector<ObserverFix> out;
-    std::istringstream in(text);
-    std::string line;
-    long row = 0;
-    while (std::getline(in, line)) {
-        ++row;
-        if (!line.empty() && line.back() == '\r') line.pop_back();
-        // A UTF-8 byte-order mark (some spreadsheet programs write one) is not part of the header.
-        if (row == 1 && line.rfind("\xEF\xBB\xBF", 0) == 0) line.erase(0, 3);
-        if (row == 1) {
-            if (line != "time_days,x_au,y_au,z_au") throw InputError(file, 1, "header", "expected the header \"time_days,x_au,y_au,z_au\"");
-            continue;
-        }
-        if (line.empty()) continue;
+    static const char* names[] = {"time_days", "x_au", "y_au", "z_au"};
+    for (const auto& [row, cells] : read_csv_rows(text, file, "time_days,x_au,y_au,z_au", 4)) {
         double v[4];
-        const char* p = line.c_str();
         for (int c = 0; c < 4; ++c) {
             char* end = nullptr;
-            v[c] = std::strtod(p, &end);
-            static const char* names[] = {"time_days", "x_au", "y_au", "z_au"};
-            if (end == p || !std::isfinite(v[c]) || (c < 3 ? *end != ',' : *end != '\0'))
-                throw InputError(file, row, names[c], "is not a finite number");
-            p = end + 1;
+            v[c] = std::strtod(cells[c].c_str(), &end);
+            if (end == cells[c].c_str() || !std::isfinite(v[c]) || *end != '\0') throw InputError(file, row, names[c], "is not a finite number");
         }
         if (!out.empty() && !(v[0] > out.back().time_days)) throw InputError(file, row, "time_days", "times must increase");
         out.push_back({v[0], Vec3(v[1], v[2], v[3])});
@@ -187,24 +197,12 @@ std::vector<ObserverFix> parse_observer_csv(const std::string& text, const std::
 
 std::vector<Observation> parse_observations_csv(const std::string& text, const std::string& file) {
     std::vector<Observation> out;
-    std::istringstream in(text);
-    std::string line;
-    long row = 0;
     const std::string header = "time_days,year,target,lon_deg,lat_deg,sigma_lon_arcsec,sigma_lat_arcsec,era";
     static const char* names[] = {"time_days", "year", "target", "lon_deg", "lat_deg", "sigma_lon_arcsec", "sigma_lat_arcsec", "era"};
-    while (std::getline(in, line)) {
-        ++row;
-        if (!line.empty() && line.back() == '\r') line.pop_back();
-        // A UTF-8 byte-order mark (some spreadsheet programs write one) is not part of the header.
-        if (row == 1 && line.rfind("\xEF\xBB\xBF", 0) == 0) line.erase(0, 3);
-        if (row == 1) {
-            if (line != header) throw InputError(file, 1, "header", "expected the header \"" + header + "\"");
-            continue;
-        }
-        if (line.empty()) continue;
-        const std::vector<std::string> cells = split_csv_line(line, file, row);
-        if (cells.size() != 8)
-            throw InputError(file, row, "row", "expected 8 columns, found " + std::to_string(cells.size()));
+    for (const CsvRow& csv_row : read_csv_rows(text, file, header, 8)) {
+        // Named copies, not structured bindings: a lambda below captures them.
+        const long row = csv_row.line;
+        const std::vector<std::string>& cells = csv_row.cells;
         auto number = [&](std::size_t c, bool optional) -> std::optional<double> {
             if (cells[c].empty()) {
                 if (optional) return std::nullopt;
@@ -238,7 +236,6 @@ std::vector<Observation> parse_observations_csv(const std::string& text, const s
         o.line = row;
         out.push_back(std::move(o));
     }
-    if (row == 0) throw InputError(file, 1, "header", "the file is empty");
     if (out.empty()) throw InputError(file, 2, "row", "the log holds no observations");
     // The same target recorded twice at the same time is a copied row, not a second measurement.
     std::vector<std::size_t> order(out.size());
@@ -275,18 +272,20 @@ Brief parse_brief(const std::string& text, const std::string& path) {
         if (!(std::abs(b.epoch0_year) <= 1e6)) r.fail("epoch0_year", "must be a year within a million years of 0");
         b.span_years = r.required_number("span_years");
         if (!(b.span_years > 0.0 && b.span_years <= 5000.0)) r.fail("span_years", "must be in (0, 5000] years");
-        b.answer_key_sha256 = r.required_string("answer_key_sha256");
+        // An invented exercise names its sealed answer key; an imported record has none, and names its files.
+        if (r.has("record_sha256")) {
+            if (r.has("answer_key_sha256")) r.fail("record_sha256", "a brief names an answer key or a record, not both");
+            b.record_sha256 = r.required_string("record_sha256");
+            b.frame = r.required_string("frame");
+            if (b.frame != ecliptic_j2000_frame) r.fail("frame", std::string("must be \"") + ecliptic_j2000_frame + "\"");
+        } else {
+            b.answer_key_sha256 = r.required_string("answer_key_sha256");
+        }
         r.finish();
     }
-    const toml::table* star = root.table("star");
-    if (!star) throw InputError(path, 1, "star", "the [star] table is missing");
-    {
-        TableReader r(*star, path, "star");
-        b.star_name = r.required_string("name");
-        b.star_mass = r.required_number("mass");
-        if (!(b.star_mass > 0.0)) r.fail("mass", "must be positive");
-        r.finish();
-    }
+    const detail::StarTable star = detail::read_star_table(root);
+    b.star_name = star.name;
+    b.star_mass = star.mass;
     const auto planets = root.tables("planet");
     for (std::size_t k = 0; k < planets.size(); ++k) {
         TableReader r(*planets[k], path, "planet[" + std::to_string(k + 1) + "]");

@@ -55,9 +55,17 @@ struct Brief {
     double field_radius_deg = 1.0;
     std::vector<BriefEra> eras;
     std::optional<Telescope> telescope;  // the site and telescope for the search rehearsal, when the scenario gives one
-    std::string answer_key_sha256;
+    std::string answer_key_sha256;  // an invented exercise: the SHA-256 of its sealed answer key
+    std::string record_sha256;      // a record brought in with `import`: the SHA-256 of its files (no answer key)
+    // The reference frame's name when it is a real one ("ecliptic-j2000": the ecliptic and equinox of J2000.0
+    // reached from ICRS, times in TDB); empty for an invented system's own reference plane.
+    std::string frame;
     std::size_t observer_index() const;  // index into planets
+    bool imported() const { return !record_sha256.empty(); }
+    // What a solution and a search name the exercise by: the answer key's digest, or the record's.
+    const std::string& identity_sha256() const { return imported() ? record_sha256 : answer_key_sha256; }
 };
+inline constexpr const char* ecliptic_j2000_frame = "ecliptic-j2000";
 
 // The team's own ephemeris of its observer planet: heliocentric positions (au, reference frame) at the
 // observation times. A team knows its own planet's orbit from its own observations of the star, far better

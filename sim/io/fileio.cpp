@@ -7,6 +7,7 @@
 #include <cstdlib>
 #include <cstring>
 #include <filesystem>
+#include <sstream>
 #include <stdexcept>
 
 #include <fcntl.h>
@@ -186,6 +187,29 @@ std::vector<std::string> split_csv_line(const std::string& line, const std::stri
         }
     }
     return cells;
+}
+
+std::vector<CsvRow> read_csv_rows(const std::string& text, const std::string& file, const std::string& header, std::size_t columns) {
+    std::vector<CsvRow> rows;
+    std::istringstream in(text);
+    std::string line;
+    long row = 0;
+    while (std::getline(in, line)) {
+        ++row;
+        if (!line.empty() && line.back() == '\r') line.pop_back();
+        if (row == 1 && line.rfind("\xEF\xBB\xBF", 0) == 0) line.erase(0, 3);
+        if (row == 1) {
+            if (line != header) throw InputError(file, 1, "header", "expected the header \"" + header + "\"");
+            continue;
+        }
+        if (line.empty()) continue;
+        std::vector<std::string> cells = split_csv_line(line, file, row);
+        if (cells.size() != columns)
+            throw InputError(file, row, "row", "expected " + std::to_string(columns) + " columns, found " + std::to_string(cells.size()));
+        rows.push_back({row, std::move(cells)});
+    }
+    if (row == 0) throw InputError(file, 1, "header", "the file is empty");
+    return rows;
 }
 
 }  // namespace wayward

@@ -53,4 +53,13 @@ std::string csv_cell(const std::string& text);
 // Throws InputError(file, line, "") when a quoted cell is not closed or text follows its closing quote.
 std::vector<std::string> split_csv_line(const std::string& line, const std::string& file = "", long line_number = 0);
 
+// The data rows of a CSV table with a fixed header: the header line must equal `header` (a UTF-8 byte-order mark,
+// which some spreadsheet programs write, and CR line ends are allowed), blank lines are skipped, every row must
+// have `columns` cells. Each row keeps its line number for errors. InputError(file, line, field) otherwise.
+struct CsvRow {
+    long line = 0;
+    std::vector<std::string> cells;
+};
+std::vector<CsvRow> read_csv_rows(const std::string& text, const std::string& file, const std::string& header, std::size_t columns);
+
 }  // namespace wayward

@@ -7,10 +7,12 @@
 #include <cstring>
 #include <filesystem>
 #include <stdexcept>
+#include <vector>
 
 #include <fcntl.h>
 #include <unistd.h>
 
+#include <Eigen/Dense>
 #include <healpix_cxx/arr.h>
 #include <healpix_cxx/error_handling.h>
 #include <healpix_cxx/fitshandle.h>
@@ -21,6 +23,7 @@
 #include "sim/base/format.hpp"
 #include "sim/base/units.hpp"
 #include "sim/exercise/observer_path.hpp"
+#include "sim/physics/geometry.hpp"
 #include "sim/io/fileio.hpp"
 
 namespace wayward {
@@ -39,23 +42,29 @@ void write_fits_into(const std::string& file, const SkyMap& map, const SkyMapHea
     names[0] = "PROB";
     prepare_Healpix_fitsmap(out, hm, PLANCK_FLOAT64, names);
     out.write_column(1, hm.Map());
-    // A frame of our own: no standard COORDSYS letter (G, E, C) fits an invented system, and a wrong letter
-    // would send a scheduler to the wrong sky.
-    out.set_key<std::string>("COORDSYS", "OBSPLANE", "lambda/beta in the observer planet's orbit plane");
+    // An invented system gets a frame of our own: no standard COORDSYS letter (G, E, C) fits it, and a wrong
+    // letter would send a scheduler to the wrong sky. An imported record's map is in ICRS ('C').
+    if (h.icrs) out.set_key<std::string>("COORDSYS", "C", "ICRS (astrometric right ascension and declination)");
+    else out.set_key<std::string>("COORDSYS", "OBSPLANE", "lambda/beta in the observer planet's orbit plane");
     out.set_key<std::string>("TTYPE1", "PROB", "probability per pixel; the map sums to 1");
     out.set_key<std::string>("TUNIT1", "pix-1", "");
     out.set_key<std::string>("CREATOR", "wayward", "a rehearsal tool for invented planetary systems");
-    out.set_key<std::string>("SCENARIO", h.scenario_name, "invented system");
+    out.set_key<std::string>("SCENARIO", h.scenario_name, h.icrs ? "imported survey record" : "invented system");
     out.set_key<double>("EPOCHYR", h.epoch_year, "year of the prediction this map belongs to");
     out.set_key<int>("NSAMPLES", h.samples, "covariance samples of the solve behind the map");
     out.set_key<double>("KERNMAJ", map.kernel_major_arcsec / 60.0, "arcmin, 1-sigma major axis of the smoothing kernel");
     out.set_key<double>("KERNMIN", map.kernel_minor_arcsec / 60.0, "arcmin, 1-sigma minor axis of the smoothing kernel");
     // FITS comment cards hold 72 characters; each line here fits one.
-    for (const char* line : {"FRAME: NOT ICRS, not galactic, not the Sun's ecliptic. An invented",
-                             "system's frame: the observer planet's orbital plane at epoch 0,",
-                             "longitude lambda (phi = lambda) and latitude beta (theta = 90 deg",
-                             "- beta), as the rest of Wayward uses.",
-                             "Pixel centres are not telescope pointings: a real observatory's own",
+    const std::vector<const char*> frame_lines =
+        h.icrs ? std::vector<const char*>{"FRAME: ICRS, astrometric right ascension (phi) and declination",
+                                          "(theta = 90 deg - dec) at the epoch, from a record imported into",
+                                          "Wayward (fitted on the ecliptic of J2000.0, rotated by ERFA)."}
+               : std::vector<const char*>{"FRAME: NOT ICRS, not galactic, not the Sun's ecliptic. An invented",
+                                          "system's frame: the observer planet's orbital plane at epoch 0,",
+                                          "longitude lambda (phi = lambda) and latitude beta (theta = 90 deg",
+                                          "- beta), as the rest of Wayward uses."};
+    for (const char* line : frame_lines) out.add_comment(line);
+    for (const char* line : {"Pixel centres are not telescope pointings: a real observatory's own",
                              "safety rules and scheduling tools take precedence, and real",
                              "predictions need cross-checking with the team's own software."})
         out.add_comment(line);
@@ -102,12 +111,13 @@ void write_sky_map_fits(const std::string& path, const SkyMap& map, const SkyMap
 }
 
 std::string sky_map_regions_csv(const Brief& brief, double epoch_year, const SkyMap& map, const std::vector<RankedPixel>& ranked,
-                                const std::vector<SkyRegion>& regions) {
+                                const std::vector<SkyRegion>& regions, const Eigen::Matrix3d* icrs_to_fitting) {
     std::size_t rows = 0;
     for (const SkyRegion& g : regions) rows = std::max(rows, g.pixels);
     const ObserverPath path = kepler_observer_path(brief);
     const double t = days_from_year(brief.epoch0_year, epoch_year);
-    std::string s = "pixel,lon_deg,lat_deg,probability,cumulative,region,elongation_deg,near_star\n";
+    std::string s = icrs_to_fitting ? "pixel,ra_deg,dec_deg,probability,cumulative,region,elongation_deg,near_star\n"
+                                    : "pixel,lon_deg,lat_deg,probability,cumulative,region,elongation_deg,near_star\n";
     for (std::size_t k = 0; k < rows && k < ranked.size(); ++k) {
         const RankedPixel& p = ranked[k];
         double lon = 0, lat = 0;
@@ -115,7 +125,13 @@ std::string sky_map_regions_csv(const Brief& brief, double epoch_year, const Sky
         double region = 100.0;
         for (const SkyRegion& g : regions)
             if (k < g.pixels) region = std::min(region, g.level * 100.0);
-        const double elongation = elongation_from_star(path, lon, lat, t) / deg;
+        double elongation = 0.0;
+        if (icrs_to_fitting) {
+            const SkyPosition f = to_sky(*icrs_to_fitting * unit_vector(lon, lat));
+            elongation = elongation_from_star(path, f.lon, f.lat, t) / deg;
+        } else {
+            elongation = elongation_from_star(path, lon, lat, t) / deg;
+        }
         s += std::to_string(p.pixel) + "," + fmt("%.6f,", lon / deg) + fmt("%.6f,", lat / deg) + fmt("%.9e,", p.probability) +
              fmt("%.9f,", p.cumulative) + fmt("%g,", region) + fmt("%.3f,", elongation) +
              (elongation < brief.elongation_limit_deg ? "1\n" : "0\n");

@@ -6,6 +6,8 @@
 #include <string>
 #include <vector>
 
+#include <Eigen/Core>
+
 #include "sim/exercise/exercise.hpp"
 #include "sim/predict/sky_map.hpp"
 
@@ -15,6 +17,7 @@ struct SkyMapHeader {
     std::string scenario_name;
     double epoch_year = 0.0;
     int samples = 0;
+    bool icrs = false;  // the map is in ICRS (an imported record), not an invented system's own frame
 };
 
 // Writes the map to `path` atomically: into a fresh private folder beside it (mkdtemp: nothing can be planted in
@@ -25,8 +28,9 @@ void write_sky_map_fits(const std::string& path, const SkyMap& map, const SkyMap
 // skymap_regions.csv: every pixel of the widest region (99 % unless given otherwise), most probable first:
 // pixel (NESTED), lon_deg, lat_deg (its centre), probability, cumulative, region (the smallest of the levels
 // holding it, in %), elongation_deg from the star at the epoch and near_star (1: inside the brief's elongation
-// limit, never to be pointed at).
+// limit, never to be pointed at). A map in ICRS (`icrs_to_fitting` given: the rotation into the brief's fitting
+// frame) names its centre columns ra_deg, dec_deg.
 std::string sky_map_regions_csv(const Brief& brief, double epoch_year, const SkyMap& map, const std::vector<RankedPixel>& ranked,
-                                const std::vector<SkyRegion>& regions);
+                                const std::vector<SkyRegion>& regions, const Eigen::Matrix3d* icrs_to_fitting = nullptr);
 
 }  // namespace wayward

@@ -487,7 +487,7 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
 
     const KnownWeights before = known_weights(setup);  // the solve changes weights and clipping; the tests compare
     Solution sol;
-    sol.exercise_sha256 = ex.brief.answer_key_sha256;
+    sol.exercise_sha256 = ex.brief.identity_sha256();
     sol.scenario_name = ex.brief.scenario_name;
     sol.priors = o.describe();
     sol.spacing_rule_au = spacing_rule_next(ex.brief);

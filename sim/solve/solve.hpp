@@ -42,7 +42,7 @@ struct Minimum {
 };
 
 struct Solution {
-    std::string exercise_sha256;    // the brief's answer-key digest: ties the solution to its exercise
+    std::string exercise_sha256;    // the brief's identity (answer-key or record digest): ties the solution to its exercise
     std::string scenario_name;
     std::string priors;
     std::vector<Minimum> minima;    // distinct local minima, best first

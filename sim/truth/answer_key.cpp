@@ -88,10 +88,7 @@ std::string answer_key_text(const Scenario& sc, const Truth& truth, const std::s
     key.insert("draws", static_cast<int64_t>(truth.draws));
     key.insert("true_positions_sha256", positions_sha);
     root.insert("answer_key", key);
-    toml::table star;
-    star.insert("name", truth.system.bodies[0].name);
-    star.insert("mass", truth.star_mass);
-    root.insert("star", star);
+    root.insert("star", detail::star_table(truth.system.bodies[0].name, truth.star_mass));
     toml::array bodies;
     for (const DrawnBody& d : truth.bodies) {
         toml::table t = elements_table(d.elements);
@@ -143,15 +140,9 @@ AnswerKey parse_answer_key(const std::string& text, const std::string& key_path)
         k.true_positions_sha256 = r.required_string("true_positions_sha256");
         r.finish();
     }
-    const toml::table* star = root.table("star");
-    if (!star) throw InputError(key_path, 1, "star", "the [star] table is missing");
-    {
-        TableReader r(*star, key_path, "star");
-        k.star_name = r.required_string("name");
-        k.star_mass = r.required_number("mass");
-        if (!(k.star_mass > 0.0)) r.fail("mass", "must be positive");
-        r.finish();
-    }
+    const detail::StarTable star = detail::read_star_table(root);
+    k.star_name = star.name;
+    k.star_mass = star.mass;
     const auto bodies = root.tables("body");
     for (std::size_t i = 0; i < bodies.size(); ++i) {
         TableReader r(*bodies[i], key_path, "body[" + std::to_string(i + 1) + "]");
