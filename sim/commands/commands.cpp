@@ -248,7 +248,7 @@ SolveOptions solve_options(const SolveArgs& a) {
     return o;
 }
 
-int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_out) {
+int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_out, Solution* solved) {
     const SolveOptions o = solve_options(args);
     const Exercise ex = load_exercise(args.dir);
     const std::string out_file = args.out_file.empty() ? args.dir + "/solution.toml" : args.out_file;
@@ -342,6 +342,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     if (const std::string c = near_star_caution(near_star(ex.brief, p), p.epoch_year); !c.empty()) out << c << "\n";
     out << "Wrote " << out_file << (replacing ? " (replacing the earlier solution there; --out FILE keeps both)\n" : "\n");
     if (args.sky_map) write_sky_map(args.dir, ex.brief, ex.brief.scenario_name, p, out);
+    if (solved) *solved = std::move(s);
     return 0;
 }
 
@@ -394,7 +395,7 @@ std::optional<std::array<double, 3>> parse_ellipse(const std::string& text) {
 }
 }  // namespace
 
-int run_score(const ScoreArgs& args, std::ostream& out) {
+int run_score(const ScoreArgs& args, std::ostream& out, Score* scored) {
     if (!(args.window_years > 0.0 && args.window_years <= 5000.0)) throw InputError("", 0, "--window", "must be in (0, 5000] years");
     const Exercise ex = load_exercise(args.dir);
     if (ex.brief.imported())
@@ -493,6 +494,7 @@ int run_score(const ScoreArgs& args, std::ostream& out) {
                 << ": the exercise's span ends there)\n";
     }
     out << std::defaultfloat << "Wrote " << args.dir << "/" << stem << ".csv and " << args.dir << "/" << stem << ".png\n";
+    if (scored) *scored = sc;
     return 0;
 }
 

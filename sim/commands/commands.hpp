@@ -63,7 +63,9 @@ struct SolveArgs {
     bool sky_map = false;  // also write DIR/skymap.fits and DIR/skymap_regions.csv
 };
 SolveOptions solve_options(const SolveArgs& args);  // parses the priors (InputError on bad values)
-int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress);
+// `solved`, when given, receives the solution in memory (with its model, for predictions at other epochs); it is
+// left untouched when the record demands no hidden body and --point-anyway is not set.
+int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress, Solution* solved = nullptr);
 
 struct ScoreArgs {
     std::string dir;
@@ -75,7 +77,8 @@ struct ScoreArgs {
     std::string ellipse;              // or "A,B,PA": 1-sigma semi-axes (arcmin), position angle (deg)
     double window_years = 60.0;
 };
-int run_score(const ScoreArgs& args, std::ostream& out);
+struct Score;
+int run_score(const ScoreArgs& args, std::ostream& out, Score* scored = nullptr);  // `scored` receives the numbers
 
 }  // namespace wayward
 
