@@ -88,6 +88,13 @@ with tempfile.TemporaryDirectory() as work:
     check(m is not None and abs(sc["separation_arcmin"] - float(m.group(1))) < 0.01,
           f"score's separation {sc['separation_arcmin']:.3f} arcmin is the one `wayward score` prints")
 
+    r = cli("search", a, "--nights", "5")
+    assert r.returncode == 0, r.stderr
+    se = wayward.search(b, nights=5)
+    check(all(filecmp.cmp(os.path.join(a, "search", f), os.path.join(b, "search", f), shallow=False) for f in ("nights.csv", "plan.csv")),
+          "search writes the same search/nights.csv and plan.csv as `wayward search`")
+    check(se["text"] == r.stdout.replace(a, b) and se["nights"]["night"].size == 5, "search returns the printed text and the 5 nights")
+
     # --- Errors: Python exceptions (ValueError) with the command's file, line and field.
     r = cli("solve", os.path.join(work, "none"))
     try:
