@@ -106,6 +106,37 @@ with tempfile.TemporaryDirectory() as work:
         hp.projplot(pred["lon_deg"], pred["lat_deg"], "w+", lonlat=True, markersize=12)
         plt.savefig(png, dpi=80)
 
+    # --- The multi-order form of the same map, read by astropy.io.fits (Debian's python3-astropy): NUNIQ cells
+    # (UNIQ = 4 * 4^order + NESTED index) whose densities, spread over the flat map's pixels, give it back.
+    flat_size = os.path.getsize(os.path.join(ex, "skymap.fits"))
+    r = run("solve", ex, "--sky-map", "--sky-map-form", "multiorder", "--quiet", "--threads", "2")
+    assert r.returncode == 0, r.stderr
+    from astropy.io import fits
+    with fits.open(os.path.join(ex, "skymap.fits")) as hdul:
+        table, mhead = hdul[1].data, hdul[1].header
+        uniq = np.asarray(table["UNIQ"], dtype=np.int64)
+        density = np.asarray(table["PROBDENSITY"], dtype=np.float64)
+    check(mhead.get("ORDERING") == "NUNIQ" and mhead.get("PIXTYPE") == "HEALPIX" and mhead.get("COORDSYS") == "OBSPLANE",
+          "multi-order map: ORDERING NUNIQ, PIXTYPE HEALPIX, the frame named (astropy.io.fits)")
+    order = np.floor(np.log2(uniq // 4) / 2).astype(np.int64)
+    ipix = uniq - 4 * 4 ** order
+    top = int(mhead["MOCORDER"])
+    check(hp.order2nside(top) == nside, f"MOCORDER {top} is the flat map's nside {nside}")
+    area = np.array([hp.nside2pixarea(hp.order2nside(int(o))) for o in order])
+    check(abs((density * area).sum() - 1.0) < 1e-9, f"multi-order probabilities sum to 1 (sum - 1 = {(density * area).sum() - 1:.1e})")
+    span = 4 ** (top - order)
+    check(int(span.sum()) == prob.size and np.all(np.diff(uniq) > 0), "the cells tile the sky once, each pixel of the flat map in one cell")
+    back = np.zeros(prob.size)
+    fine_area = hp.nside2pixarea(nside)
+    for o, p, d in zip(order, ipix, density):
+        first = int(p) * 4 ** (top - int(o))
+        back[first:first + 4 ** (top - int(o))] = d * fine_area
+    check(np.max(np.abs(back - prob)) <= 1e-12 * prob.max(), "spread back over the flat pixels, it is the flat map (to 1e-12 of its peak)")
+    multi_size = os.path.getsize(os.path.join(ex, "skymap.fits"))
+    check(multi_size * 10 < flat_size, f"the multi-order file is {multi_size / 1e3:.0f} kB against the flat {flat_size / 1e6:.1f} MB")
+    r = run("solve", ex, "--sky-map", "--sky-map-form", "round", "--quiet")
+    check(r.returncode == 2 and "--sky-map-form" in r.stderr, f"an unknown form is refused: {r.stderr.strip()}")
+
     # --- Bad input: a symbolic link at skymap.fits is refused before any work, and nothing is written through it.
     target = os.path.join(work, "elsewhere.fits")
     with open(target, "w") as fh:

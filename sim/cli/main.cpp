@@ -97,6 +97,7 @@ Command add_solve(CLI::App& app) {
         ->capture_default_str();
     c->add_option("--out", sv.out_file, "solution file to write (default EXERCISE/solution.toml)");
     c->add_flag("--sky-map", sv.sky_map, "also write the prediction's probability map (DIR/skymap.fits, HEALPix) and its 50/90/99 % regions (DIR/skymap_regions.csv)");
+    c->add_option("--sky-map-form", sv.sky_map_form, "the map's FITS form: flat (a probability per NESTED pixel) or multiorder (NUNIQ cells, far smaller)")->capture_default_str();
     return {c, [args] { return run_solve(*args, std::cout, std::cerr); }};
 }
 

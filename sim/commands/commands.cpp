@@ -255,7 +255,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     if (std::filesystem::is_directory(out_file)) throw InputError(out_file, 0, "--out", "is a folder; give the solution file's name");
     refuse_link_at(out_file);  // before the work, not after
     const bool replacing = std::filesystem::exists(out_file);
-    if (args.sky_map) check_sky_map_request(args.dir);
+    if (args.sky_map) check_sky_map_request(args.dir, args.sky_map_form);
     Progress bar(progress_out, args.quiet);
     SolveProgress sp;
     sp.report = [&](const std::string& stage, double f) { bar.update(stage, f); };
@@ -341,7 +341,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     out << icrs_pointing_text(ex.brief, p);
     if (const std::string c = near_star_caution(near_star(ex.brief, p), p.epoch_year); !c.empty()) out << c << "\n";
     out << "Wrote " << out_file << (replacing ? " (replacing the earlier solution there; --out FILE keeps both)\n" : "\n");
-    if (args.sky_map) write_sky_map(args.dir, ex.brief, ex.brief.scenario_name, p, out);
+    if (args.sky_map) write_sky_map(args.dir, ex.brief, ex.brief.scenario_name, p, out, args.sky_map_form);
     if (solved) *solved = std::move(s);
     return 0;
 }

@@ -61,6 +61,7 @@ struct SolveArgs {
     std::string era_systematics = "none";         // none, offsets or drifts (nuisance parameters per era)
     std::string out_file;  // where solution.toml goes (default: EXERCISE/solution.toml)
     bool sky_map = false;  // also write DIR/skymap.fits and DIR/skymap_regions.csv
+    std::string sky_map_form = "flat";  // flat (NESTED, one nside) or multiorder (NUNIQ cells)
 };
 SolveOptions solve_options(const SolveArgs& args);  // parses the priors (InputError on bad values)
 // `solved`, when given, receives the solution in memory (with its model, for predictions at other epochs); it is

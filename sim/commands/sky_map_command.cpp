@@ -2,6 +2,7 @@
 #include "sim/commands/sky_map_command.hpp"
 
 #include <cmath>
+#include <filesystem>
 
 #include "sim/base/errors.hpp"
 #include "sim/base/format.hpp"
@@ -15,12 +16,15 @@ namespace wayward {
 
 using detail::fmt;
 
-void check_sky_map_request(const std::string& dir) {
+void check_sky_map_request(const std::string& dir, const std::string& form) {
+    if (form != "flat" && form != "multiorder") throw InputError("", 0, "--sky-map-form", "\"" + form + "\" is not a form: flat or multiorder");
     refuse_link_at(dir + "/" + sky_map_fits_name, "--sky-map");
     refuse_link_at(dir + "/" + sky_map_regions_name, "--sky-map");
 }
 
-void write_sky_map(const std::string& dir, const Brief& brief, const std::string& scenario_name, const Prediction& p, std::ostream& out) {
+void write_sky_map(const std::string& dir, const Brief& brief, const std::string& scenario_name, const Prediction& p, std::ostream& out,
+                   const std::string& form) {
+    check_sky_map_request(dir, form);
     if (p.sample_lon.size() < static_cast<std::size_t>(min_sky_map_samples))
         throw std::runtime_error("sky map: only " + std::to_string(p.sample_lon.size()) + " of the covariance samples could be integrated");
     // The resolution follows the sampled ellipse, the one the map is made of.
@@ -42,12 +46,17 @@ void write_sky_map(const std::string& dir, const Brief& brief, const std::string
     const std::vector<SkyRegion> regions = sky_regions(map, ranked, {0.5, 0.9, 0.99});
     const std::string csv_path = dir + "/" + sky_map_regions_name;
     const std::string fits_path = dir + "/" + sky_map_fits_name;
-    write_sky_map_fits(fits_path, map, {scenario_name, p.epoch_year, static_cast<int>(p.sample_lon.size()), brief.imported()});
+    const SkyMapForm fits_form = form == "multiorder" ? SkyMapForm::multi_order : SkyMapForm::flat;
+    write_sky_map_fits(fits_path, map, {scenario_name, p.epoch_year, static_cast<int>(p.sample_lon.size()), brief.imported()}, fits_form);
+    std::error_code ec;
+    const double fits_mb = static_cast<double>(std::filesystem::file_size(fits_path, ec)) / 1e6;
     write_file_atomic(csv_path, sky_map_regions_csv(brief, p.epoch_year, map, ranked, regions, brief.imported() ? &to_fitting : nullptr));
     out << "Sky map at " << fmt("%.2f", p.epoch_year) << " (nside " << nside << ", " << fmt("%.2f", sky_map_pixel_arcmin(nside))
         << " arcmin pixels, " << p.sample_lon.size() << " samples): 50/90/99 % regions " << fmt("%.4g", regions[0].area_deg2) << " / "
-        << fmt("%.4g", regions[1].area_deg2) << " / " << fmt("%.4g", regions[2].area_deg2) << " square degrees; wrote " << fits_path << ", "
-        << csv_path << "\n";
+        << fmt("%.4g", regions[1].area_deg2) << " / " << fmt("%.4g", regions[2].area_deg2) << " square degrees; wrote " << fits_path << " ("
+        << (fits_form == SkyMapForm::multi_order ? "multi-order, " : "flat, ") << fmt("%.3g", fits_mb) << " MB), " << csv_path << "\n";
+    if (fits_form == SkyMapForm::flat && fits_mb > 20.0)
+        out << "  (--sky-map-form multiorder writes the same map as multi-order HEALPix cells: the empty sky in coarse cells, far smaller)\n";
     out << (brief.imported() ? "  (in ICRS, astrometric; pixels" : "  (in the observer planet's orbital plane, not ICRS; pixels")
         << " inside the elongation limit are marked near_star. A real "
            "observatory's own safety rules and scheduling tools take precedence.)\n";

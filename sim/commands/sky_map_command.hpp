@@ -16,8 +16,10 @@ inline constexpr const char* sky_map_regions_name = "skymap_regions.csv";
 
 // Before the solve: InputError (field --sky-map) for a link or a non-file at either output name. (--samples is
 // at least 20 by the solve's own validation.)
-void check_sky_map_request(const std::string& dir);
+void check_sky_map_request(const std::string& dir, const std::string& form = "flat");
 // After the solve, holding the folder's lock: writes both files and prints the areas and a caution.
-void write_sky_map(const std::string& dir, const Brief& brief, const std::string& scenario_name, const Prediction& p, std::ostream& out);
+// `form`: "flat" (a probability per NESTED pixel) or "multiorder" (NUNIQ cells), checked by check_sky_map_request.
+void write_sky_map(const std::string& dir, const Brief& brief, const std::string& scenario_name, const Prediction& p, std::ostream& out,
+                   const std::string& form = "flat");
 
 }  // namespace wayward

@@ -7,6 +7,7 @@
 
 #include <Eigen/Dense>
 #include <healpix_cxx/healpix_base.h>
+#include <healpix_cxx/moc.h>
 #include <healpix_cxx/pointing.h>
 #include <healpix_cxx/rangeset.h>
 
@@ -182,6 +183,40 @@ std::vector<SkyRegion> sky_regions(const SkyMap& map, const std::vector<RankedPi
         out.push_back(g);
     }
     return out;
+}
+
+int sky_map_order(int nside) {
+    int order = 0;
+    while ((1 << order) < nside) ++order;
+    return order;
+}
+
+std::vector<MultiOrderCell> multi_order_cells(const SkyMap& map) {
+    const int order = sky_map_order(map.nside);
+    const double pixel_sr = 4.0 * pi / static_cast<double>(map.probability.size());
+    std::vector<MultiOrderCell> cells;
+    // The empty pixels as runs of NESTED indices, then as the fewest cells of any order.
+    Moc<int64> empty;
+    const std::int64_t n = static_cast<std::int64_t>(map.probability.size());
+    for (std::int64_t k = 0; k < n;) {
+        if (map.probability[static_cast<std::size_t>(k)] > 0.0) {
+            cells.push_back({4ull * (1ull << (2 * order)) + static_cast<std::uint64_t>(k), order, k,
+                             map.probability[static_cast<std::size_t>(k)] / pixel_sr});
+            ++k;
+            continue;
+        }
+        std::int64_t end = k;
+        while (end < n && !(map.probability[static_cast<std::size_t>(end)] > 0.0)) ++end;
+        empty.appendPixelRange(order, k, end);
+        k = end;
+    }
+    for (const int64 u : empty.toUniq()) {
+        int o = 0;
+        while (4ll * (1ll << (2 * (o + 1))) <= u) ++o;
+        cells.push_back({static_cast<std::uint64_t>(u), o, u - 4ll * (1ll << (2 * o)), 0.0});
+    }
+    std::sort(cells.begin(), cells.end(), [](const MultiOrderCell& a, const MultiOrderCell& b) { return a.uniq < b.uniq; });
+    return cells;
 }
 
 }  // namespace wayward

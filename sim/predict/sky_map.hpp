@@ -64,4 +64,18 @@ std::vector<RankedPixel> ranked_pixels(const SkyMap& map);
 // The regions for each level (each in (0, 1]), from the ranking above.
 std::vector<SkyRegion> sky_regions(const SkyMap& map, const std::vector<RankedPixel>& ranked, const std::vector<double>& levels);
 
+// The map's HEALPix order (nside = 2^order).
+int sky_map_order(int nside);
+
+// The map in multi-order form: every pixel holding probability at the map's own order, the empty sky covered by
+// the fewest coarser cells (libhealpix-cxx's Moc). uniq = 4 * 4^order + NESTED index; the density is the
+// probability per steradian, so a cell's probability is density * its area. Sorted by uniq.
+struct MultiOrderCell {
+    std::uint64_t uniq = 0;
+    int order = 0;
+    std::int64_t pixel = 0;
+    double density_per_sr = 0.0;
+};
+std::vector<MultiOrderCell> multi_order_cells(const SkyMap& map);
+
 }  // namespace wayward

@@ -261,7 +261,8 @@ PYBIND11_MODULE(wayward, m) {
     m.def(
         "solve",
         [](const std::string& dir, unsigned threads, int samples, int starts, const std::string& distance, bool circular, bool coplanar,
-           std::optional<double> epoch_year, const std::string& era_systematics, bool point_anyway, bool sky_map, const std::string& out) {
+           std::optional<double> epoch_year, const std::string& era_systematics, bool point_anyway, bool sky_map, const std::string& sky_map_form,
+           const std::string& out) {
             SolveArgs a;
             a.dir = dir;
             a.threads = threads;
@@ -274,6 +275,7 @@ PYBIND11_MODULE(wayward, m) {
             a.era_systematics = era_systematics;
             a.point_anyway = point_anyway;
             a.sky_map = sky_map;
+            a.sky_map_form = sky_map_form;
             a.out_file = out;
             a.quiet = true;
             PySolution s;
@@ -286,7 +288,7 @@ PYBIND11_MODULE(wayward, m) {
         },
         py::arg("dir"), py::arg("threads") = 0, py::arg("samples") = 300, py::arg("starts") = 4, py::arg("distance") = "free",
         py::arg("circular") = false, py::arg("coplanar") = false, py::arg("epoch_year") = py::none(), py::arg("era_systematics") = "none",
-        py::arg("point_anyway") = false, py::arg("sky_map") = false, py::arg("out") = "",
+        py::arg("point_anyway") = false, py::arg("sky_map") = false, py::arg("sky_map_form") = "flat", py::arg("out") = "",
         "Solves the inverse problem (as `wayward solve`, same option names); returns a Solution.");
 
     m.def(

@@ -33,21 +33,12 @@ namespace fs = std::filesystem;
 
 namespace {
 
-void write_fits_into(const std::string& file, const SkyMap& map, const SkyMapHeader& h) {
-    Healpix_Map<double> hm(map.nside, NEST, SET_NSIDE);
-    for (std::size_t k = 0; k < map.probability.size(); ++k) hm[static_cast<int>(k)] = map.probability[k];
-    fitshandle out;
-    out.create(file);
-    arr<std::string> names(1);
-    names[0] = "PROB";
-    prepare_Healpix_fitsmap(out, hm, PLANCK_FLOAT64, names);
-    out.write_column(1, hm.Map());
+// The header cards both forms share: the frame, the provenance, the smoothing, the cautions.
+void common_keys(fitshandle& out, const SkyMap& map, const SkyMapHeader& h) {
     // An invented system gets a frame of our own: no standard COORDSYS letter (G, E, C) fits it, and a wrong
     // letter would send a scheduler to the wrong sky. An imported record's map is in ICRS ('C').
     if (h.icrs) out.set_key<std::string>("COORDSYS", "C", "ICRS (astrometric right ascension and declination)");
     else out.set_key<std::string>("COORDSYS", "OBSPLANE", "lambda/beta in the observer planet's orbit plane");
-    out.set_key<std::string>("TTYPE1", "PROB", "probability per pixel; the map sums to 1");
-    out.set_key<std::string>("TUNIT1", "pix-1", "");
     out.set_key<std::string>("CREATOR", "wayward", "a rehearsal tool for invented planetary systems");
     out.set_key<std::string>("SCENARIO", h.scenario_name, h.icrs ? "imported survey record" : "invented system");
     out.set_key<double>("EPOCHYR", h.epoch_year, "year of the prediction this map belongs to");
@@ -68,12 +59,51 @@ void write_fits_into(const std::string& file, const SkyMap& map, const SkyMapHea
                              "safety rules and scheduling tools take precedence, and real",
                              "predictions need cross-checking with the team's own software."})
         out.add_comment(line);
+}
+
+// The flat form: one PROB column, a probability per NESTED pixel (libhealpix-cxx's map writer).
+void write_flat_fits(const std::string& file, const SkyMap& map, const SkyMapHeader& h) {
+    Healpix_Map<double> hm(map.nside, NEST, SET_NSIDE);
+    for (std::size_t k = 0; k < map.probability.size(); ++k) hm[static_cast<int>(k)] = map.probability[k];
+    fitshandle out;
+    out.create(file);
+    arr<std::string> names(1);
+    names[0] = "PROB";
+    prepare_Healpix_fitsmap(out, hm, PLANCK_FLOAT64, names);
+    out.write_column(1, hm.Map());
+    out.set_key<std::string>("TTYPE1", "PROB", "probability per pixel; the map sums to 1");
+    out.set_key<std::string>("TUNIT1", "pix-1", "");
+    common_keys(out, map, h);
+    out.close();
+}
+
+// The multi-order form: UNIQ and PROBDENSITY columns (ORDERING = NUNIQ). Pixels holding probability stay at the
+// map's order; the empty sky is covered by the fewest coarser cells (libhealpix-cxx's Moc::toUniq).
+void write_multi_order_fits(const std::string& file, const SkyMap& map, const SkyMapHeader& h) {
+    const std::vector<MultiOrderCell> cells = multi_order_cells(map);
+    std::vector<int64> uniq;
+    std::vector<double> density;
+    for (const MultiOrderCell& c : cells) {
+        uniq.push_back(static_cast<int64>(c.uniq));
+        density.push_back(c.density_per_sr);
+    }
+    fitshandle out;
+    out.create(file);
+    out.insert_bintab({fitscolumn("UNIQ", "", 1, PLANCK_INT64), fitscolumn("PROBDENSITY", "sr-1", 1, PLANCK_FLOAT64)}, "xtension");
+    out.write_column(1, uniq);
+    out.write_column(2, density);
+    out.set_key<std::string>("PIXTYPE", "HEALPIX", "HEALPIX pixelisation");
+    out.set_key<std::string>("ORDERING", "NUNIQ", "pixel index: UNIQ = 4 * 4^order + NESTED index");
+    out.set_key<std::string>("INDXSCHM", "EXPLICIT", "indexing: explicit");
+    out.set_key<int>("MOCORDER", sky_map_order(map.nside), "finest order (the flat map's nside = 2^order)");
+    out.set_key<std::string>("TTYPE2", "PROBDENSITY", "probability per steradian; sums to 1 over the sky");
+    common_keys(out, map, h);
     out.close();
 }
 
 }  // namespace
 
-void write_sky_map_fits(const std::string& path, const SkyMap& map, const SkyMapHeader& header) {
+void write_sky_map_fits(const std::string& path, const SkyMap& map, const SkyMapHeader& header, SkyMapForm form) {
     refuse_link_at(path);
     const fs::path target(path);
     const fs::path dir = target.has_parent_path() ? target.parent_path() : fs::path(".");
@@ -91,7 +121,8 @@ void write_sky_map_fits(const std::string& path, const SkyMap& map, const SkyMap
         ::rmdir(tmp_dir.c_str());
     };
     try {
-        write_fits_into(tmp, map, header);
+        if (form == SkyMapForm::multi_order) write_multi_order_fits(tmp, map, header);
+        else write_flat_fits(tmp, map, header);
         const int fd = ::open(tmp.c_str(), O_RDONLY | O_NOFOLLOW | O_CLOEXEC);
         if (fd < 0 || ::fsync(fd) != 0) throw std::runtime_error(std::strerror(errno));
         ::close(fd);

@@ -20,10 +20,14 @@ struct SkyMapHeader {
     bool icrs = false;  // the map is in ICRS (an imported record), not an invented system's own frame
 };
 
+// The FITS form: flat (a probability per NESTED pixel of one nside: what healpy.read_map reads) or multi-order
+// (NUNIQ cells with a probability density: the empty sky in few coarse cells, often a hundred times smaller).
+enum class SkyMapForm { flat, multi_order };
+
 // Writes the map to `path` atomically: into a fresh private folder beside it (mkdtemp: nothing can be planted in
 // it), then renamed over `path`. Throws InputError when `path` is a symbolic link or not a regular file,
 // std::runtime_error naming the path when writing fails.
-void write_sky_map_fits(const std::string& path, const SkyMap& map, const SkyMapHeader& header);
+void write_sky_map_fits(const std::string& path, const SkyMap& map, const SkyMapHeader& header, SkyMapForm form = SkyMapForm::flat);
 
 // skymap_regions.csv: every pixel of the widest region (99 % unless given otherwise), most probable first:
 // pixel (NESTED), lon_deg, lat_deg (its centre), probability, cumulative, region (the smallest of the levels
