@@ -42,6 +42,12 @@ struct CampaignSettings {
     std::string name;
     long line = 0;
     SolveOptions options;             // as `wayward solve` would build them (threads and seed set per unit)
+    // A team's own solver instead of Wayward's (`external = ["program", "arg", ...]` in the spec): run once per
+    // unit in the spec's folder with the case's exercise folder as its last argument; it writes prediction.toml
+    // there (one prediction per epoch of the brief). Empty: Wayward's solver.
+    std::vector<std::string> external;
+    double external_timeout_s = 600.0;
+    std::string external_dir;         // the working folder (the spec's)
 };
 
 // The search rehearsal in a campaign ([search] in the spec): off unless the table is there. Each case runs

@@ -61,3 +61,18 @@ private:
 };
 
 }  // namespace wayward
+
+namespace wayward {
+
+struct Exercise;
+struct Prediction;
+// A team's own solver on one unit: writes the exercise (brief with the case's epochs as its search epochs,
+// observations, observer track; no answer key) into `case_dir`, runs the settings' command there (working folder:
+// the spec's; the case folder as the last argument; stdout and stderr into case_dir/solver.log), waits at most
+// the settings' timeout (killing it then, or when `cancel` is set) and reads case_dir/prediction.toml. One
+// prediction per epoch, matched by epoch_year (to a thousandth of a year). Throws std::runtime_error with the
+// reason when the program fails, times out, or writes no usable prediction.
+std::vector<Prediction> run_external_solver(const CampaignSettings& st, const Exercise& ex, const std::vector<double>& epochs_year,
+                                            const std::string& case_dir, const std::atomic<bool>* cancel);
+
+}  // namespace wayward

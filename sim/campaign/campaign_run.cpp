@@ -145,7 +145,8 @@ void search_case(const CampaignSpec& spec, const Exercise& ex, const TruthEpheme
 }
 
 // Solves one unit and scores it at every epoch. Returns no rows if cancelled.
-std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, std::size_t unit, const std::atomic<bool>* cancel) {
+std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, std::size_t unit, const std::string& out_dir,
+                              const std::atomic<bool>* cancel) {
     const std::size_t system = unit / spec.settings.size();
     const std::size_t scenario = system / spec.seeds;
     const CampaignScenario& cs = spec.scenarios[scenario];
@@ -177,6 +178,31 @@ std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, 
     auto cancelled = [&] { return cancel && cancel->load(); };
     if (!data.ex) {
         fail_all(data.error);
+    } else if (!st.external.empty()) {
+        // A team's own solver: its stated prediction at each epoch, scored like Wayward's.
+        const Exercise& ex = data.ex->exercise;
+        try {
+            const std::vector<Prediction> preds =
+                run_external_solver(st, ex, cs.epochs_year, out_dir + "/external/" + st.name + "-" + std::to_string(unit), cancel);
+            if (cancelled()) return {};
+            const TruthEphemeris truth = integrate_truth(ex.brief, data.ex->key);
+            for (std::size_t e = 0; e < rows.size(); ++e) {
+                const Score s = score_prediction(ex.brief, truth, preds[e], spec.window_years);
+                CaseRow& r = rows[e];
+                r.separation_arcmin = s.separation_arcmin;
+                r.detected = true;
+                r.hit = s.hit;
+                r.mahalanobis = s.mahalanobis;
+                r.radius90_arcmin = NAN;
+                r.luck_fraction = s.luck_fraction_inside;
+                r.closest_year = s.closest_year;
+                r.closest_arcmin = s.closest_arcmin;
+                r.data_centre_year = r.fitted_a_au = r.fitted_mass = NAN;
+            }
+        } catch (const std::exception& e) {
+            if (cancelled()) return {};
+            fail_all(std::string("external solver: ") + e.what());
+        }
     } else {
         const Exercise& ex = data.ex->exercise;
         SolveOptions o = st.options;
@@ -338,7 +364,7 @@ std::size_t run_units(const CampaignSpec& spec, const CampaignRun& run, const Pl
             ~Release() { c.release(s); }
         } release{cache, system};
         const std::shared_ptr<const SystemData> data = cache.get(system);
-        const std::vector<CaseRow> rows = run_unit(spec, *data, u, run.cancel);
+        const std::vector<CaseRow> rows = run_unit(spec, *data, u, run.out_dir, run.cancel);
         if (rows.empty()) return;  // cancelled
         std::string text;
         long added = 0;

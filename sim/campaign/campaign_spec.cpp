@@ -163,7 +163,7 @@ void read_epochs(TableReader& root, const std::string& file, CampaignSpec& spec)
     }
 }
 
-void read_settings(TableReader& root, const std::string& file, CampaignSpec& spec) {
+void read_settings(TableReader& root, const std::string& file, const std::string& base_dir, CampaignSpec& spec) {
     const auto settings_tables = root.tables("settings");
     if (settings_tables.empty()) throw InputError(file, 1, "settings", "at least one [[settings]] table (a named way to solve) is required");
     for (const toml::table* t : settings_tables) {
@@ -174,6 +174,20 @@ void read_settings(TableReader& root, const std::string& file, CampaignSpec& spe
         if (!valid_label(s.name)) r.fail("name", label_rule());
         for (const CampaignSettings& other : spec.settings)
             if (other.name == s.name) r.fail("name", "two settings are named \"" + s.name + "\"");
+        if (r.has("external")) {
+            // A team's own solver: a command, no options of Wayward's solver.
+            s.external = r.strings("external").value_or(std::vector<std::string>{});
+            if (s.external.empty() || s.external.front().empty()) r.fail("external", "must name a program: [\"program\", \"argument\", ...]");
+            s.external_timeout_s = r.number_or("external_timeout_s", 600.0);
+            if (!(s.external_timeout_s > 0.0 && s.external_timeout_s <= 86400.0)) r.fail("external_timeout_s", "must be in (0, 86400] seconds");
+            s.external_dir = base_dir.empty() ? "." : base_dir;
+            for (const char* key : {"circular", "coplanar", "ecc_sigma", "tilt_sigma_deg", "samples", "starts", "grid_distances", "grid_longitudes",
+                                    "neglect_light_time", "distance"})
+                if (r.has(key)) r.fail(key, "an external solver takes no options of Wayward's solver (give them to your program)");
+            r.finish();
+            spec.settings.push_back(std::move(s));
+            continue;
+        }
         // The solve's options under their library names (solve_options.hpp); a range error names the spec key.
         SolveOptions& o = s.options;
         o.circular = r.boolean("circular").value_or(false);
@@ -222,6 +236,8 @@ void read_search(TableReader& root, const std::string& file, CampaignSpec& spec)
     } catch (const InputError& e) {
         r.fail("strategy", e.message());
     }
+    for (const CampaignSettings& st : spec.settings)
+        if (!st.external.empty()) r.fail("nights", "settings \"" + st.name + "\" use an external solver, whose region the rehearsal cannot map");
     for (const CampaignScenario& cs : spec.scenarios) {
         if (!cs.scenario.telescope) r.fail("nights", cs.name + " has no [telescope] table, so it cannot be searched");
         const double end = cs.scenario.epoch0_year + cs.scenario.span_years;
@@ -244,7 +260,7 @@ CampaignSpec parse_campaign_spec(const std::string& text, const std::string& fil
     read_campaign_table(root, file, spec);
     const std::string identity = read_scenarios(root, file, base_dir, spec);
     read_epochs(root, file, spec);
-    read_settings(root, file, spec);
+    read_settings(root, file, base_dir, spec);
     read_search(root, file, spec);
     root.finish();
     // Every case is one row; a count no machine could finish is refused before anything is written.

@@ -197,6 +197,7 @@ int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& pr
 #include "sim/base/progress.hpp"
 #include "sim/predict/near_star.hpp"
 #include "sim/score/score.hpp"
+#include "sim/score/stated_prediction.hpp"
 #include "sim/io/toml_reader.hpp"
 
 namespace wayward {
@@ -329,7 +330,7 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
         out << "  (the model is not linear over the region: the samples were drawn in the hidden body's parameters, the planets'\n"
             << "  corrections solved for each, and weighted by their exact chi2; effective sample size " << std::setprecision(1)
             << p.effective_samples << std::setprecision(3) << " of " << p.samples_used << ")\n";
-        if (p.effective_samples < 30.0)
+        if (p.effective_samples < 29.95)  // as printed: equal weights give n up to rounding, and 30.0 is not "under 30"
             out << "  Caution: so few effective samples cannot map the region; its shape and size are poorly known.\n";
     }
     if (p.samples_in_full < p.samples_used)
@@ -347,33 +348,6 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
 }
 
 namespace {
-// A trainee's stated region as a covariance of (lambda cos beta, beta) in arcsec^2: a circle holding 90 % (sigma =
-// R / sqrt(2 ln 10)), or an ellipse of 1-sigma semi-axes a >= b whose major axis has position angle pa (from +beta
-// through +lambda). `fail` reports a bad value with its field.
-void set_region(Prediction& p, std::optional<double> radius_arcmin, std::optional<std::array<double, 3>> ellipse,
-                const std::function<void(const std::string&, const std::string&)>& fail, const std::string& radius_field,
-                const std::string& ellipse_field) {
-    if (radius_arcmin && ellipse) fail(ellipse_field, "give a radius or an ellipse, not both");
-    if (radius_arcmin) {
-        if (!(*radius_arcmin > 0.0 && *radius_arcmin < 180.0 * 60.0)) fail(radius_field, "must be a radius in (0, 10800) arcmin");
-        const double sigma = *radius_arcmin * 60.0 / std::sqrt(2.0 * std::log(10.0));
-        p.cov_ll = p.cov_bb = sigma * sigma;
-        p.cov_lb = 0.0;
-    } else if (ellipse) {
-        const auto [a, b, pa] = *ellipse;
-        if (!(a > 0.0 && a < 10800.0 && b > 0.0 && b <= a)) fail(ellipse_field, "needs semi-axes 0 < B <= A < 10800 arcmin");
-        if (!(pa >= 0.0 && pa < 180.0)) fail(ellipse_field, "needs a position angle in [0, 180) degrees");
-        const double s = std::sin(pa * deg), c = std::cos(pa * deg);  // the major axis in (lambda cos beta, beta)
-        const double a2 = a * a * 3600.0, b2 = b * b * 3600.0;
-        p.cov_ll = a2 * s * s + b2 * c * c;
-        p.cov_bb = a2 * c * c + b2 * s * s;
-        p.cov_lb = (a2 - b2) * s * c;
-    } else {
-        return;
-    }
-    ellipse_axes(p.cov_ll, p.cov_lb, p.cov_bb, p.semi_major_arcsec, p.semi_minor_arcsec, p.orientation_deg);
-}
-
 std::optional<std::array<double, 3>> parse_ellipse(const std::string& text) {
     if (text.empty()) return std::nullopt;
     std::array<double, 3> v{};
@@ -413,25 +387,14 @@ int run_score(const ScoreArgs& args, std::ostream& out, Score* scored) {
         p.lon = wrap_two_pi(*args.lon_deg * deg);
         p.lat = *args.lat_deg * deg;
         p.epoch_year = *args.epoch_year;
-        set_region(p, args.radius_arcmin, parse_ellipse(args.ellipse),
+        set_stated_region(p, args.radius_arcmin, parse_ellipse(args.ellipse),
                    [](const std::string& field, const std::string& why) { throw InputError("", 0, field, why); }, "--radius", "--ellipse");
         source = "your prediction";
     } else if (!args.prediction_file.empty()) {
-        const toml::table t = detail::parse_toml(detail::read_text_file(args.prediction_file), args.prediction_file);
-        detail::TableReader r(t, args.prediction_file, "");
-        p.lon = wrap_two_pi(r.required_number("lon_deg") * deg);
-        p.lat = r.required_number("lat_deg") * deg;
-        if (!(p.lat >= -pi / 2 && p.lat <= pi / 2)) r.fail("lat_deg", "must be in [-90, 90]");
-        p.epoch_year = r.required_number("epoch_year");
-        std::optional<double> radius;
-        std::optional<std::array<double, 3>> ellipse;
-        if (r.has("radius_arcmin")) radius = r.required_number("radius_arcmin");
-        if (r.has("sigma_major_arcmin") || r.has("sigma_minor_arcmin") || r.has("position_angle_deg"))
-            ellipse = std::array<double, 3>{r.required_number("sigma_major_arcmin"), r.required_number("sigma_minor_arcmin"),
-                                            r.required_number("position_angle_deg")};
-        set_region(p, radius, ellipse, [&r](const std::string& field, const std::string& why) { r.fail(field, why); }, "radius_arcmin",
-                   ellipse && !radius ? "sigma_major_arcmin" : "position_angle_deg");
-        r.finish();
+        const std::vector<Prediction> stated = parse_stated_predictions(detail::read_text_file(args.prediction_file), args.prediction_file);
+        if (stated.size() != 1)
+            throw InputError(args.prediction_file, 0, "prediction", "holds " + std::to_string(stated.size()) + " predictions; score takes one");
+        p = stated.front();
         source = args.prediction_file;
     } else {
         const std::string path = args.solution.empty() ? args.dir + "/solution.toml" : args.solution;
