@@ -16,7 +16,7 @@ trap 'rm -rf "$tmp"' EXIT
 "$cli" new "$src/scenarios/default.toml" --seed 1 --out "$tmp/ex" >/dev/null || exit 1
 "$cli" solve "$tmp/ex" --quiet >/dev/null || exit 1
 echo "load average before: $(cut -d' ' -f1-3 /proc/loadavg); $(nproc) cores"
-for panel in system sky residuals solve score; do
+for panel in system sky residuals solve score search; do
   medians=()
   for ((r = 0; r < runs; r++)); do
     line=$("$view" "$tmp/ex" --panel "$panel" --year 1960 --prediction 101.6,0.2 --reveal --stars 20000 \

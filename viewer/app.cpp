@@ -311,6 +311,9 @@ private:
         ImGui::SameLine();
         ImGui::AlignTextToFramePadding();
         ImGui::TextDisabled("%s", format_calendar_date(calendar_date(year)).c_str());
+        if (ImGui::IsItemHovered())
+            ImGui::SetTooltip("Years are Julian epochs (365.25 days each from 2000 January 1.5);\n"
+                              "the date is the Gregorian day they fall on, so 1700.000 is 1699 Dec 29.");
 
         double y = year;
         const double y0 = m.year(m.t_begin()), y1 = m.year(m.t_end());

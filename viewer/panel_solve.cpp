@@ -378,16 +378,21 @@ private:
         ImGui::Separator();
         const HiddenOrbit& o = k == 0 ? s.best : s.minima[k].orbit;
         ImGui::Text("Minimum %zu%s", k + 1, k == 0 ? " (best)" : "");
+        // Every line wraps at the sidebar's edge: the numbers are too long for a 1280-pixel window's sidebar.
+        ImGui::PushTextWrapPos(0.0f);
         if (k == 0) {
-            ImGui::Text("a = %.2f \u00b1 %.2f au, mass = %.3g \u00b1 %.2g", o.semi_major_axis, s.distance_sigma_au, o.mass, s.mass_sigma);
+            // One quantity group per line: ImGui may break a wrapped line at a decimal point.
+            ImGui::Text("a = %.2f \u00b1 %.2f au", o.semi_major_axis, s.distance_sigma_au);
+            ImGui::Text("mass = %.3g \u00b1 %.2g (solar masses)", o.mass, s.mass_sigma);
             ImGui::Text("e = %.3f, i = %.2f\u00b0, \u03c7\u00b2/dof = %.3f", std::hypot(o.k, o.h), o.inclination / deg,
                         s.chi2 / static_cast<double>(std::max<std::size_t>(s.dof, 1)));
             const Prediction& p = s.prediction;
             ImGui::Text("at %s: \u03bb %s, \u03b2 %s, %.1f au", format_decimal_year(p.epoch_year, 2).c_str(), format_deg(p.lon, 3).c_str(),
                         format_deg(p.lat, 3).c_str(), p.distance_au);
-            ImGui::Text("1\u03c3 %s \u00d7 %s at %.1f\u00b0; 90%% within %s", format_angle_arcmin(p.semi_major_arcsec / 60).c_str(),
-                        format_angle_arcmin(p.semi_minor_arcsec / 60).c_str(), p.orientation_deg, format_angle_arcmin(p.radius90_arcsec / 60).c_str());
-            ImGui::PushTextWrapPos(0.0f);
+            ImGui::Text("1\u03c3 ellipse %s \u00d7 %s at PA %.1f\u00b0", format_angle_arcmin(p.semi_major_arcsec / 60).c_str(),
+                        format_angle_arcmin(p.semi_minor_arcsec / 60).c_str(), position_angle_deg(p.orientation_deg));
+            ImGui::Text("90%% of samples within %s", format_angle_arcmin(p.radius90_arcsec / 60).c_str());
+            ImGui::TextDisabled("PA: from north (+\u03b2) through east (+\u03bb)");
             const DetectionTest& d = s.detection;
             if (d.threshold > 0.0)
                 ImGui::TextColored(d.detected() ? ImVec4(0.55f, 0.85f, 0.55f, 1.0f) : ImVec4(1.0f, 0.6f, 0.3f, 1.0f),
@@ -396,19 +401,16 @@ private:
                                    std::max(0.0, d.delta_chi2), d.threshold);
             if (const std::string near = near_star_caution(near_star(a.exercise().brief, p), p.epoch_year); !near.empty())
                 ImGui::TextColored(ImVec4(1.0f, 0.6f, 0.3f, 1.0f), "%s", near.c_str());
-            ImGui::PopTextWrapPos();
         } else {
             ImGui::Text("a = %.2f au, mass = %.3g, e = %.3f", o.semi_major_axis, o.mass, std::hypot(o.k, o.h));
             ImGui::Text("mean longitude %.2f\u00b0, \u03c7\u00b2 %.1f (\u0394 %.1f)", wrap_two_pi(o.mean_longitude) / deg, s.minima[k].chi2,
                         s.minima[k].chi2 - s.minima.front().chi2);
-            ImGui::PushTextWrapPos(0.0f);
             if (a.minimum_has_orbit(k))
                 ImGui::TextDisabled("Its track is predicted with the planets at their known-fit states: the solver keeps each "
                                     "minimum's hidden orbit, not its corrections to the planets. No ellipse for this minimum.");
             else
                 ImGui::TextDisabled("solution.toml keeps only a, mean longitude, mass, e and \u03c7\u00b2 of this minimum, not its "
                                     "tilt or perihelion: no track can be drawn. Run the solver here to see it.");
-            ImGui::PopTextWrapPos();
         }
         bool exact = false;
         if (const Prediction* p = shown_prediction(m, c, &exact)) {
@@ -419,9 +421,9 @@ private:
                 c.marker.epoch_days = std::clamp(m.days_at_year(p->epoch_year), m.t_begin(), m.t_end());
                 if (!(c.marker.radius > 0)) c.marker.radius = m.field_radius();
             }
-            ImGui::SameLine();
-            ImGui::TextDisabled("copies \u03bb, \u03b2 and the epoch to your marker");
+            ImGui::TextDisabled("(copies \u03bb, \u03b2 and the epoch to your marker)");
         }
+        ImGui::PopTextWrapPos();
     }
 };
 
