@@ -294,7 +294,7 @@ private:
         } else {
             lines.emplace_back("track only (the planets at their known-fit states); no ellipse for this minimum");
         }
-        float w = ts * 20.0f;
+        float w = ts * (exact && !p.sample_lon.empty() ? 26.0f : 20.0f);  // room for the key's second row
         for (const auto& l : lines) w = std::max(w, ctx.fonts.pick(ts)->CalcTextSizeA(ts, 1e9f, 0, l.c_str()).x);
         // Bottom right, clear of the latitude labels on the left edge.
         const float bottom = sky.top + sky.height - pad - ts * 1.5f;  // above the longitude labels
@@ -329,7 +329,11 @@ private:
         list.PathStroke(im_color(palette::solution), ImDrawFlags_Closed, 1.5f);
         x += ts * 1.4f + 6 + draw_text(list, ctx.fonts, ts, ImVec2(x + ts * 1.4f + 6, y), im_color(palette::text), "1\u03c3 ellipse").x + 16;
         list.AddCircle(ImVec2(x + ts * 0.5f, y + ts * 0.55f), ts * 0.5f, im_color(palette::solution), 24, 1.0f);
-        draw_text(list, ctx.fonts, ts, ImVec2(x + ts + 6, y), im_color(palette::text), "90% of samples (circle)");
+        x += ts + 6 + draw_text(list, ctx.fonts, ts, ImVec2(x + ts + 6, y), im_color(palette::text), "90% of samples (circle)").x + 16;
+        if (!p.sample_lon.empty()) {
+            list.AddCircleFilled(ImVec2(x + 2.0f, y + ts * 0.55f), 1.8f, im_color(palette::solution), 6);
+            draw_text(list, ctx.fonts, ts, ImVec2(x + 8.0f, y), im_color(palette::text), "virtual bodies");
+        }
     }
 
     void draw_minima(ImDrawList& list, const sf::FloatRect& area, const ViewerControls& c, const Solution& s, const DrawContext& ctx) {

@@ -419,6 +419,15 @@ void SkyChart::draw_solution(ImDrawList& list, const ViewerControls& c, const Vi
     if (!p) return;
     const ImU32 col = im_color(palette::solution), faint = im_color(palette::solution, 60);
     if (exact) {
+        // The virtual bodies (the solve's weighted samples at the epoch), each a dot as opaque as its weight
+        // against an equal share: the map the search and the HEALPix file use.
+        const std::size_t nb = p->sample_lon.size();
+        if (nb > 0 && p->sample_lat.size() == nb && p->sample_weight.size() == nb)
+            for (std::size_t k = 0; k < nb; ++k) {
+                const double share = p->sample_weight[k] * static_cast<double>(nb);
+                const int alpha = static_cast<int>(std::clamp(70.0 + 110.0 * std::sqrt(share), 40.0, 230.0));
+                list.AddCircleFilled(map_.to_screen(p->sample_lon[k], p->sample_lat[k]), 1.6f, im_color(palette::solution, alpha), 6);
+            }
         if (p->radius90_arcsec > 0)
             fill_circle(list, p->lon, p->lat, p->radius90_arcsec * arcsec, im_color(palette::solution, 22), im_color(palette::solution, 150), 1.2f);
         draw_ellipse(list, *p, faint, col);

@@ -112,8 +112,13 @@ std::string summary_text(const RehearsalResult& r, const Brief& b, const Telesco
       << " field, limit " << fmt("%.1f", tel.limiting_mag) << " mag at the zenith, " << fmt("%.1f", tel.minutes_per_field())
       << " min per field; site latitude " << fmt("%.1f", tel.site_latitude_deg) << " deg, clear nights "
       << fmt("%.0f", 100.0 * tel.clear_fraction) << " %\n";
-    o << "Region: 1-sigma ellipse " << fmt("%.3f", r.region.sigma_major / deg) << " x " << fmt("%.3f", r.region.sigma_minor / deg)
-      << " deg; " << r.fields.size() << " field" << (r.fields.size() == 1 ? "" : "s") << " tiled\n";
+    if (r.region.from_virtual_bodies)
+        o << "Region: the solve's " << r.region.virtual_bodies << " virtual bodies (effective " << fmt("%.1f", r.region.effective_samples)
+          << "; the map is not linear), 98.9 % within " << fmt("%.2f", r.region.reach / deg) << " deg; " << r.fields.size() << " field"
+          << (r.fields.size() == 1 ? "" : "s") << " tiled\n";
+    else
+        o << "Region: 1-sigma ellipse " << fmt("%.3f", r.region.sigma_major / deg) << " x " << fmt("%.3f", r.region.sigma_minor / deg)
+          << " deg; " << r.fields.size() << " field" << (r.fields.size() == 1 ? "" : "s") << " tiled\n";
     for (const NightRecord& n : r.nights) {
         o << "Night " << n.night << " (" << fmt("%.3f", n.start_year) << "): ";
         if (!n.clear) { o << "cloudy\n"; continue; }

@@ -83,12 +83,20 @@ struct Prediction {
     int samples_used = 0;
     int samples_in_full = 0;        // of those, run through the model (the rest propagated linearly)
     double pilot_departure = NAN;   // the pilot samples' largest departure from linear, in semi-minor axes
-    // The samples' own sky positions (radians; in memory only) and their weights (summing to one: equal where the
-    // map is linear, importance weights where it is not), for the probability map of the region.
+    // The samples' own sky positions (radians) and their weights (summing to one: equal where the map is linear,
+    // importance weights where it is not): the virtual bodies whose density is the probability map of the region.
+    // solution.toml keeps them, so search, score and the viewer use the same map as the solve.
     std::vector<double> sample_lon, sample_lat, sample_weight;
     double effective_samples = NAN;  // (sum w)^2 / sum w^2 of the importance weights; NaN when all are equal
     std::vector<TrackPoint> track;
 };
+
+// Whether the samples, not the ellipse, describe the region: every sample was run through the model because the
+// pilot showed the map is not linear (where it is, the samples are the ellipse's Gaussian propagated linearly).
+inline bool samples_describe_region(const Prediction& p) {
+    return p.samples_used > 0 && p.samples_in_full >= p.samples_used && p.sample_lon.size() == static_cast<std::size_t>(p.samples_used) &&
+           p.sample_lat.size() == p.sample_lon.size() && p.sample_weight.size() == p.sample_lon.size();
+}
 
 struct PredictOptions {
     double track_years = 60.0;      // track +- this around each epoch (cut at the span's ends)

@@ -90,10 +90,11 @@ int sky_map_nside(double semi_minor_arcsec) {
     return nside;
 }
 
-SkyMap make_sky_map(const std::vector<SkySample>& samples, int nside) {
-    if (!power_of_two(nside) || nside > max_sky_map_nside)
-        throw InputError("", 0, "nside", "must be a power of two in [1, " + std::to_string(max_sky_map_nside) + "], not " + std::to_string(nside));
-    if (samples.empty()) throw InputError("", 0, "samples", "a sky map needs at least one sample");
+namespace {
+
+// The total weight and the sum of squared weights, after checking every sample (InputError, field "samples").
+std::pair<double, double> checked_weights(const std::vector<SkySample>& samples) {
+    if (samples.empty()) throw InputError("", 0, "samples", "a probability map needs at least one sample");
     double total = 0.0, total_sq = 0.0;
     for (std::size_t k = 0; k < samples.size(); ++k) {
         const SkySample& x = samples[k];
@@ -105,6 +106,38 @@ SkyMap make_sky_map(const std::vector<SkySample>& samples, int nside) {
         total_sq += x.weight * x.weight;
     }
     if (!(total > 0.0)) throw InputError("", 0, "samples", "the weights add up to zero");
+    return {total, total_sq};
+}
+
+}  // namespace
+
+std::vector<SkySample> draw_from_sample_density(const std::vector<SkySample>& samples, int count, Rng& rng) {
+    const auto [total, total_sq] = checked_weights(samples);
+    const Kernel k = make_kernel(samples, total, total * total / total_sq, 0.0);
+    // The kernel's square root by its eigen-decomposition (a degenerate kernel, all samples on a line, is fine).
+    Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> es(k.covariance);
+    const Eigen::Matrix2d root = es.eigenvectors() * es.eigenvalues().cwiseMax(0.0).cwiseSqrt().asDiagonal();
+    std::vector<double> cumulative(samples.size());
+    double acc = 0.0;
+    for (std::size_t j = 0; j < samples.size(); ++j) cumulative[j] = acc += samples[j].weight;
+    std::vector<SkySample> out;
+    out.reserve(static_cast<std::size_t>(std::max(count, 0)));
+    for (int n = 0; n < count; ++n) {
+        const double u = uniform01(rng) * acc;
+        const auto it = std::upper_bound(cumulative.begin(), cumulative.end(), u);
+        const SkySample& x = samples[std::min<std::size_t>(static_cast<std::size_t>(it - cumulative.begin()), samples.size() - 1)];
+        const double z1 = normal(rng), z2 = normal(rng);
+        const Eigen::Vector2d d = k.shrink * tangent_offset(x.lon, x.lat, k.lon0, k.lat0) + (1.0 - k.shrink) * k.mean +
+                                  root * Eigen::Vector2d(z1, z2);
+        out.push_back({wrap_two_pi(k.lon0 + d.x() / std::cos(k.lat0)), std::clamp(k.lat0 + d.y(), -pi / 2, pi / 2), 1.0});
+    }
+    return out;
+}
+
+SkyMap make_sky_map(const std::vector<SkySample>& samples, int nside) {
+    if (!power_of_two(nside) || nside > max_sky_map_nside)
+        throw InputError("", 0, "nside", "must be a power of two in [1, " + std::to_string(max_sky_map_nside) + "], not " + std::to_string(nside));
+    const auto [total, total_sq] = checked_weights(samples);
 
     const Healpix_Base2 base = nested_base(nside);
     SkyMap map;

@@ -15,6 +15,8 @@
 #include <cstdint>
 #include <vector>
 
+#include "sim/base/random.hpp"
+
 namespace wayward {
 
 struct SkySample {
@@ -45,6 +47,13 @@ struct SkyMap {
 // Throws InputError (field "samples") for no samples, a non-finite direction or weight, a negative weight or a
 // zero total weight, and for an nside that is not a power of two in [1, max_sky_map_nside].
 SkyMap make_sky_map(const std::vector<SkySample>& samples, int nside);
+
+// Directions drawn from the density the map is made of (the kernel estimate above, without the pixel floor):
+// each draw picks a sample with probability proportional to its weight, centres that sample's kernel as the map
+// does and adds the kernel's Gaussian, so the draws keep the samples' mean and covariance (the smoothed bootstrap
+// of Liu & West 2001). The draws come from `rng` in order, so a seed gives the same draws everywhere. The same
+// errors as make_sky_map for bad samples; a negative count draws nothing.
+std::vector<SkySample> draw_from_sample_density(const std::vector<SkySample>& samples, int count, Rng& rng);
 
 // Centre of a NESTED pixel (radians).
 void sky_map_pixel_centre(int nside, std::int64_t pixel, double& lon, double& lat);

@@ -14,11 +14,12 @@ void save_search_png(const RehearsalResult& r, const Telescope& tel, double epoc
     map.x_label = "east offset ξ (deg)";
     map.y_label = "north offset η (deg)";
     plot::Series samples;
-    samples.label = "region samples (the solution's Gaussian)";
+    samples.label = r.region.from_virtual_bodies ? "region samples (the solve's virtual bodies)" : "region samples (the solution's Gaussian)";
     samples.style = plot::Style::points;
     samples.point_size = 0.8;
     samples.color = plot::Color{0.55, 0.55, 0.55, 0.6};
     for (const RegionSample& s : r.region.samples) {
+        if (std::hypot(s.xi, s.eta) > 100.0) continue;  // a draw beyond the tangent plane's reach (region.hpp)
         samples.x.push_back(s.xi / deg);
         samples.y.push_back(s.eta / deg);
     }

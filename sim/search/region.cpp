@@ -7,6 +7,8 @@
 #include "sim/base/random.hpp"
 #include "sim/base/units.hpp"
 #include "sim/physics/elements.hpp"
+#include "sim/physics/geometry.hpp"
+#include "sim/predict/sky_map.hpp"
 
 namespace wayward {
 
@@ -38,10 +40,39 @@ SearchRegion region_from_solution(const Solution& s, int count, std::uint64_t se
     r.orientation = p.orientation_deg * deg;
     // Samples of N(0, C) through the Cholesky factor of C (arcsec^2 -> radians^2); a floor of 1 arcsec keeps a
     // degenerate covariance drawable.
-    const double a = std::max(p.cov_ll, 1.0), b = p.cov_lb, c = std::max(p.cov_bb, 1.0);
-    const double l11 = std::sqrt(a), l21 = b / l11, l22 = std::sqrt(std::max(c - l21 * l21, 1e-6 * c));
     Rng rng = make_rng(seed, "search region");
     r.samples.reserve(static_cast<std::size_t>(std::max(count, 0)));
+    if (samples_describe_region(p)) {
+        std::vector<SkySample> bodies;
+        double total = 0.0, total_sq = 0.0;
+        for (std::size_t k = 0; k < p.sample_lon.size(); ++k) {
+            bodies.push_back({p.sample_lon[k], p.sample_lat[k], p.sample_weight[k]});
+            total += p.sample_weight[k];
+            total_sq += p.sample_weight[k] * p.sample_weight[k];
+        }
+        r.from_virtual_bodies = true;
+        r.virtual_bodies = static_cast<int>(bodies.size());
+        r.effective_samples = total_sq > 0.0 ? total * total / total_sq : 0.0;
+        std::vector<double> radii;
+        for (const SkySample& x : draw_from_sample_density(bodies, count, rng)) {
+            RegionSample rs;
+            if (separation(r.lon, r.lat, x.lon, x.lat) < 80.0 * deg) {
+                to_tangent(r.lon, r.lat, x.lon, x.lat, rs.xi, rs.eta);
+            } else {
+                rs.xi = rs.eta = 1e3;  // beyond every field (a field is at most a few degrees wide)
+            }
+            radii.push_back(std::hypot(rs.xi, rs.eta));
+            r.samples.push_back(rs);
+        }
+        if (!radii.empty()) {
+            const auto q = radii.begin() + static_cast<std::ptrdiff_t>(std::floor(0.989 * static_cast<double>(radii.size() - 1)));
+            std::nth_element(radii.begin(), q, radii.end());
+            r.reach = std::min(*q, std::tan(80.0 * deg));
+        }
+        return r;
+    }
+    const double a = std::max(p.cov_ll, 1.0), b = p.cov_lb, c = std::max(p.cov_bb, 1.0);
+    const double l11 = std::sqrt(a), l21 = b / l11, l22 = std::sqrt(std::max(c - l21 * l21, 1e-6 * c));
     for (int k = 0; k < count; ++k) {
         const double z1 = normal(rng), z2 = normal(rng);
         r.samples.push_back({l11 * z1 * arcsec, (l21 * z1 + l22 * z2) * arcsec, 1.0});
@@ -107,7 +138,8 @@ Field as_offset(const SearchRegion& r, const Field& f, double year) {
 std::vector<Field> tile_region(const SearchRegion& r, const Telescope& tel, double extent_sigma, int max_fields) {
     const double fov = tel.field_of_view_deg * deg;
     const double step = tel.shape == FieldShape::square ? fov : fov / std::sqrt(2.0);
-    const double extent = std::max(extent_sigma * r.sigma_major, 0.5 * step);
+    const double spread = r.from_virtual_bodies ? r.reach * extent_sigma / 3.0 : extent_sigma * r.sigma_major;
+    const double extent = std::max(spread, 0.5 * step);
     const int n = std::min(200, static_cast<int>(std::ceil(extent / step - 0.5)));
     std::vector<Field> fields;
     for (int i = -n; i <= n; ++i)
