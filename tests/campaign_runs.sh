@@ -12,7 +12,7 @@ SRC=$2
 T=$(mktemp -d)
 trap 'rm -rf "$T"' EXIT
 fail() { echo "FAIL: $*" >&2; exit 1; }
-rows() { cut -d, -f1-28 "$1/cases.csv"; }
+rows() { cut -d, -f1-29 "$1/cases.csv"; }
 lines_in() { if [ -f "$1" ]; then wc -l < "$1"; else echo 0; fi; }
 # Waits until FILE has at least N lines (at most 300 s).
 wait_lines() {
@@ -71,16 +71,16 @@ for f in summary.txt success_vs_epoch.png separations.png luck_fraction.png clos
 done
 diff <(rows "$T/one") <(rows "$T/two") || fail "1 and 2 threads differ"
 # The search columns: found 0 or 1 on every row, a night in 1..4 exactly when found, hours in [0, 4 nights].
-awk -F, 'NR > 1 && !(($25 == "0" && $26 == "") || ($25 == "1" && $26 >= 1 && $26 <= 4)) { bad = 1 }
-         NR > 1 && ($27 == "" || $27 < 0 || $27 > 96) { bad = 1 } END { exit bad }' "$T/one/cases.csv" ||
-    fail "search columns out of range: $(cut -d, -f25-27 "$T/one/cases.csv")"
+awk -F, 'NR > 1 && !(($26 == "0" && $27 == "") || ($26 == "1" && $27 >= 1 && $27 <= 4)) { bad = 1 }
+         NR > 1 && ($28 == "" || $28 < 0 || $28 > 96) { bad = 1 } END { exit bad }' "$T/one/cases.csv" ||
+    fail "search columns out of range: $(cut -d, -f26-28 "$T/one/cases.csv")"
 grep -q "^Search rehearsal: the body confirmed" "$T/one/summary.txt" || fail "the summary has no search table"
 for k in 1 2 3; do "$W" campaign "$T/tiny.toml" --out "$T/s$k" --shard "$k/3" --threads 2 --quiet > /dev/null; done
 [ "$(rows "$T/s3" | wc -l)" -eq 3 ] || fail "shard 3/3 should hold unit 2 only (2 cases)"
 "$W" merge "$T/s1" "$T/s2" "$T/s3" --out "$T/merged" > "$T/merge.txt"
 grep -q "all 8 cases, each once" "$T/merge.txt" || fail "merge did not confirm 8 cases"
 diff <(rows "$T/one") <(rows "$T/merged") || fail "3 shards merged differ from one run"
-diff <(cut -d, -f1-28 "$T/s2/cases.csv" | tail -n +2) <(rows "$T/one" | awk -F, 'NR > 1 && int($1 / 2) % 3 == 1') ||
+diff <(cut -d, -f1-29 "$T/s2/cases.csv" | tail -n +2) <(rows "$T/one" | awk -F, 'NR > 1 && int($1 / 2) % 3 == 1') ||
     fail "shard 2/3 does not hold the units u with u % 3 == 1"
 # Rerunning a finished campaign redoes nothing and keeps the rows.
 "$W" campaign "$T/tiny.toml" --out "$T/one" --threads 2 > "$T/again.txt" 2>&1

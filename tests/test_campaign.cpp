@@ -231,6 +231,7 @@ TEST_CASE("campaign rows: a row survives formatting and parsing, and a damaged r
     r.hit = true;
     r.mahalanobis = 1.553922;
     r.radius90_arcmin = 40.5;
+    r.map_rank = 0.4321;
     r.luck_fraction = 0.75;
     r.closest_year = 1968;
     r.closest_arcmin = 8.1;
@@ -242,9 +243,20 @@ TEST_CASE("campaign rows: a row survives formatting and parsing, and a damaged r
     r.unit_seconds = 1.5;
     const std::string line = format_case_row(r);
     CHECK(line.back() == '\n');
-    CHECK(std::count(line.begin(), line.end(), ',') == 28);
+    CHECK(std::count(line.begin(), line.end(), ',') == 29);
     const CaseRow back = parse_case_row(line.substr(0, line.size() - 1), "cases.csv", 5);
     CHECK(format_case_row(back) == line);
+    CHECK(back.map_rank == 0.4321);
+    // A rank outside [0, 1] is refused by name.
+    CaseRow odd = r;
+    odd.map_rank = 1.5;
+    const std::string oline = format_case_row(odd);
+    try {
+        (void)parse_case_row(oline.substr(0, oline.size() - 1), "cases.csv", 6);
+        FAIL("a map rank of 1.5 was accepted");
+    } catch (const InputError& e) {
+        CHECK(e.field() == "map_rank");
+    }
     CHECK(back.inside_sigma(2.0));
     CHECK_FALSE(back.inside_sigma(1.0));
     CHECK(back.radius90_holds());
@@ -268,7 +280,7 @@ TEST_CASE("campaign rows: a row survives formatting and parsing, and a damaged r
     failed.mahalanobis.reset();
     failed.hit = false;
     const std::string fline = format_case_row(failed);
-    CHECK(split_csv_line(fline.substr(0, fline.size() - 1)).size() == 29);  // the note's comma is quoted, not a separator
+    CHECK(split_csv_line(fline.substr(0, fline.size() - 1)).size() == 30);  // the note's comma is quoted, not a separator
     const CaseRow fback = parse_case_row(fline.substr(0, fline.size() - 1), "cases.csv", 6);
     CHECK(fback.note == failed.note);
     CHECK_FALSE(fback.ok);

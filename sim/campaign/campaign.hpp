@@ -116,6 +116,7 @@ struct CaseRow {
     bool detected = true;                     // the record demanded a hidden body (the solve's detection test)
     std::optional<double> mahalanobis;        // from the linear 1-sigma ellipse
     double radius90_arcmin = NAN;             // radius holding 90% of the covariance samples
+    double map_rank = NAN;                    // the truth's rank in the virtual bodies' map, where it is not linear
     double luck_fraction = NAN;               // of the luck window inside the field radius
     double closest_year = NAN, closest_arcmin = NAN;
     double data_centre_year = NAN;            // sigma-weighted mean time of the kept observations

@@ -46,14 +46,14 @@ namespace fs = std::filesystem;
 const std::string& campaign_csv_header() {
     static const std::string h =
         "case,scenario,seed,settings,epoch_year,epoch_offset_years,status,separation_arcmin,field_radius_arcmin,hit,"
-        "mahalanobis,inside_1sigma,inside_2sigma,radius90_arcmin,radius90_holds,luck_fraction,closest_year,closest_arcmin,"
+        "mahalanobis,inside_1sigma,inside_2sigma,radius90_arcmin,radius90_holds,map_rank,luck_fraction,closest_year,closest_arcmin,"
         "data_centre_year,closest_minus_centre_years,fitted_a_au,true_a_au,fitted_mass,true_mass,search_found,search_night,"
         "search_hours,note,unit_seconds";
     return h;
 }
 
 namespace {
-constexpr std::size_t kColumns = 29;
+constexpr std::size_t kColumns = 30;
 
 // A failure's note, cut to 200 bytes (not inside a UTF-8 sequence) so a row stays short; csv_cell quotes it.
 std::string short_note(std::string s) {
@@ -85,6 +85,7 @@ std::string format_case_row(const CaseRow& r) {
     add(r.mahalanobis ? (r.inside_sigma(2.0) ? "1" : "0") : "");
     add(cell_or_empty("%.6f", r.radius90_arcmin));
     add(std::isfinite(r.radius90_arcmin) && r.ok ? (r.radius90_holds() ? "1" : "0") : "");
+    add(cell_or_empty("%.4f", r.map_rank));
     add(cell_or_empty("%.6f", r.luck_fraction));
     add(cell_or_empty("%.4f", r.closest_year));
     add(cell_or_empty("%.6f", r.closest_arcmin));
@@ -144,30 +145,32 @@ CaseRow parse_case_row(const std::string& line, const std::string& file, long n)
     r.hit = flag(9);
     if (!c[10].empty()) r.mahalanobis = number(10, true);
     r.radius90_arcmin = number(13, false);
-    r.luck_fraction = number(15, false);
-    r.closest_year = number(16, false);
-    r.closest_arcmin = number(17, false);
-    r.data_centre_year = number(18, false);
-    r.fitted_a_au = number(20, false);
-    r.true_a_au = number(21, false);
-    r.fitted_mass = number(22, false);
-    r.true_mass = number(23, false);
-    if (!c[24].empty()) {
+    r.map_rank = number(15, false);
+    if (std::isfinite(r.map_rank) && !(r.map_rank >= 0.0 && r.map_rank <= 1.0)) throw InputError(file, n, names[15], "must be in [0, 1]");
+    r.luck_fraction = number(16, false);
+    r.closest_year = number(17, false);
+    r.closest_arcmin = number(18, false);
+    r.data_centre_year = number(19, false);
+    r.fitted_a_au = number(21, false);
+    r.true_a_au = number(22, false);
+    r.fitted_mass = number(23, false);
+    r.true_mass = number(24, false);
+    if (!c[25].empty()) {
         r.searched = true;
-        r.search_found = flag(24);
+        r.search_found = flag(25);
         if (r.search_found) {
-            const std::uint64_t night = whole(25);
-            if (night < 1 || night > 100000) throw InputError(file, n, names[25], "\"" + c[25] + "\" is not a night number");
+            const std::uint64_t night = whole(26);
+            if (night < 1 || night > 100000) throw InputError(file, n, names[26], "\"" + c[26] + "\" is not a night number");
             r.search_night = static_cast<int>(night);
-        } else if (!c[25].empty()) {
-            throw InputError(file, n, names[25], "must be empty when the body was not found");
+        } else if (!c[26].empty()) {
+            throw InputError(file, n, names[26], "must be empty when the body was not found");
         }
-        r.search_hours = number(26, true);
-    } else if (!c[25].empty() || !c[26].empty()) {
-        throw InputError(file, n, names[24], "is empty but the search's other cells are not");
+        r.search_hours = number(27, true);
+    } else if (!c[26].empty() || !c[27].empty()) {
+        throw InputError(file, n, names[25], "is empty but the search's other cells are not");
     }
-    r.note = c[27];
-    r.unit_seconds = number(28, false);
+    r.note = c[28];
+    r.unit_seconds = number(29, false);
     if (!std::isfinite(r.unit_seconds)) r.unit_seconds = 0.0;
     return r;
 }

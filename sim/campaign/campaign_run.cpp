@@ -232,6 +232,7 @@ std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, 
                 r.hit = r.detected && s.hit;
                 r.mahalanobis = s.mahalanobis;
                 r.radius90_arcmin = preds[e].samples_used > 0 ? preds[e].radius90_arcsec / 60.0 : NAN;
+                r.map_rank = s.map_truth_rank.value_or(NAN);
                 r.luck_fraction = s.luck_fraction_inside;
                 r.closest_year = s.closest_year;
                 r.closest_arcmin = s.closest_arcmin;

@@ -182,7 +182,7 @@ void read_settings(TableReader& root, const std::string& file, const std::string
             if (!(s.external_timeout_s > 0.0 && s.external_timeout_s <= 86400.0)) r.fail("external_timeout_s", "must be in (0, 86400] seconds");
             s.external_dir = base_dir.empty() ? "." : base_dir;
             for (const char* key : {"circular", "coplanar", "ecc_sigma", "tilt_sigma_deg", "samples", "starts", "grid_distances", "grid_longitudes",
-                                    "neglect_light_time", "distance"})
+                                    "neglect_light_time", "distance", "era_systematics"})
                 if (r.has(key)) r.fail(key, "an external solver takes no options of Wayward's solver (give them to your program)");
             r.finish();
             spec.settings.push_back(std::move(s));
@@ -204,6 +204,9 @@ void read_settings(TableReader& root, const std::string& file, const std::string
         o.grid_distances = bounded("grid_distances", o.grid_distances, 2, 100);
         o.grid_longitudes = bounded("grid_longitudes", o.grid_longitudes, 4, 360);
         if (r.boolean("neglect_light_time").value_or(false)) o.model.light_time = LightTime::neglected;
+        o.model.era_systematics = r.string("era_systematics").value_or("none");
+        if (o.model.era_systematics != "none" && o.model.era_systematics != "offsets" && o.model.era_systematics != "drifts")
+            r.fail("era_systematics", "must be none, offsets or drifts, not \"" + o.model.era_systematics + "\"");
         try {
             set_distance_prior(o, r.string("distance").value_or("free"));  // validates every option
         } catch (const InputError& e) {

@@ -93,7 +93,7 @@ Command add_solve(CLI::App& app) {
     c->add_option("--fitting-model", sv.fitting_model, "the fitting model's integrator: wisdom-holman (fast) or adaptive (the reference)")->capture_default_str();
     c->add_option("--derivatives", sv.derivatives, "fit Jacobians: variational (the map's tangent map, one run) or differences (a run per parameter)")->capture_default_str();
     c->add_option("--era-systematics", sv.era_systematics,
-                  "fit each era's offset (offsets) or offset and drift (drifts) as nuisance parameters, all eras but the most weighted; none: trust the eras")
+                  "fit each era's offset (offsets) or offset and drift (drifts) as nuisance parameters, in both coordinates except the most weighted era's longitude; none: trust the eras")
         ->capture_default_str();
     c->add_option("--out", sv.out_file, "solution file to write (default EXERCISE/solution.toml)");
     c->add_flag("--sky-map", sv.sky_map, "also write the prediction's probability map (DIR/skymap.fits, HEALPix) and its 50/90/99 % regions (DIR/skymap_regions.csv)");
@@ -188,7 +188,8 @@ Command add_budget(CLI::App& app) {
 
 }  // namespace
 
-int main(int argc, char** argv) {
+// Parses the command line and runs the command; main() only turns what escapes into an exit status.
+int run(int argc, char** argv) {
     CLI::App app{"wayward: rehearse the prediction of an unseen planet from the pull it exerts on planets you can see"};
     app.set_version_flag("--version", std::string("wayward ") + WAYWARD_VERSION);
     app.require_subcommand(1);
@@ -213,9 +214,16 @@ int main(int argc, char** argv) {
         return rc == 0 ? 0 : 2;
     }
     plot::set_svg_copies(svg);
+    for (const Command& c : commands)
+        if (c.app->parsed()) return c.run();
+    return 0;
+}
+
+int main(int argc, char** argv) {
+    // Everything, the command-line setup included, runs inside the handlers: out of memory at any point is exit
+    // status 3 with a plain message, never an abort.
     try {
-        for (const Command& c : commands)
-            if (c.app->parsed()) return c.run();
+        return run(argc, argv);
     } catch (const InputError& e) {
         std::cerr << "wayward: " << e.what() << "\n";
         return 2;  // bad input (README: Exit status)

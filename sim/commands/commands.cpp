@@ -445,6 +445,9 @@ int run_score(const ScoreArgs& args, std::ostream& out, Score* scored) {
             << "% of the probability\n";
         out << "Probability the field covered, by the stated region: " << 100.0 * *sc.field_probability << "%\n" << std::setprecision(3);
     }
+    if (sc.map_truth_rank)
+        out << "By the solve's virtual bodies (the map is not linear): rank of the truth " << std::setprecision(1) << 100.0 * *sc.map_truth_rank
+            << "%, the field covered " << 100.0 * *sc.map_field_probability << "%\n" << std::setprecision(3);
     out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
         << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "
         << std::setprecision(3) << sc.closest_arcmin << " arcmin in " << std::setprecision(2) << sc.closest_year << "\n";

@@ -41,13 +41,13 @@ std::vector<Block> blocks(const EraSystematicsView& setup) {
     const EraSystematics kind = era_systematics_from_name(setup.choice);
     if (kind == EraSystematics::none) return out;
     for (std::size_t e = 0; e < setup.eras; ++e) {
-        if (e == setup.reference_era) continue;
         double t_mean = 0.0, n = 0.0;
         for (const FitObservation& f : *setup.obs)
             if (f.era == e && !f.rejected) { t_mean += f.time_days; n += 1.0; }
         if (n == 0.0) continue;
         t_mean /= n;
         for (int c = 0; c < 2; ++c) {
+            if (e == setup.reference_era && c == 0) continue;  // the frame's zero of longitude (era_systematics.hpp)
             Block b;
             b.era = e;
             b.coordinate = c;

@@ -5,7 +5,10 @@
 // and drift basis removed. The fit that remains, its chi2 and its covariance are those of the full problem with
 // the nuisance parameters free (the covariance is the marginal one: their uncertainty reaches the region).
 // One era, the reference (the one with the most statistical weight, sum of 1/sigma^2 as recorded or as the
-// setup starts with), has none: offsets common to every era would be a turn of the whole frame.
+// setup starts with), has no longitude offset (or drift): a longitude offset common to every era would be a turn
+// of the whole frame about the pole of the observer's orbit, which the planets' longitudes absorb. Its latitude
+// offset is fitted like every other era's: no turn of the frame makes a constant latitude offset (a tilt changes
+// latitudes as the sine of the longitude), so a telescope's latitude error would otherwise bend the fit.
 #pragma once
 
 #include <array>
@@ -35,7 +38,7 @@ std::string to_string(EraSystematics s);
 std::size_t era_systematic_parameters(const EraSystematicsView& setup);
 
 // Removes from every column of m (2 rows per observation: lambda cos beta, beta, weighted; rejected rows zero)
-// its weighted least-squares fit on each non-reference era's offset (and drift) basis.
+// its weighted least-squares fit on each era's offset (and drift) basis (the reference era's latitude only).
 void project_out_era_systematics(const EraSystematicsView& setup, Eigen::Ref<Eigen::MatrixXd> m);
 
 // The fitted systematic error of every observation (arcsec, lambda cos beta and beta) from weighted residuals r.

@@ -85,7 +85,7 @@ ModelSetup make_setup(const Exercise& ex, const ModelOptions& options) {
         t_max = std::max(t_max, o.time_days);
         s.obs.push_back(f);
     }
-    // The reference era (no nuisance offsets): the most statistical weight, by the sigma as recorded (1" where not).
+    // The reference era (no longitude offset): the most statistical weight, by the sigma as recorded (1" where not).
     {
         std::vector<double> weight(s.eras.size(), 0.0);
         for (const FitObservation& f : s.obs)

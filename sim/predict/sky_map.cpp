@@ -14,6 +14,7 @@
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
 #include "sim/physics/elements.hpp"
+#include "sim/physics/geometry.hpp"
 
 namespace wayward {
 
@@ -111,27 +112,87 @@ std::pair<double, double> checked_weights(const std::vector<SkySample>& samples)
 
 }  // namespace
 
-std::vector<SkySample> draw_from_sample_density(const std::vector<SkySample>& samples, int count, Rng& rng) {
+SampleDensity::SampleDensity(const std::vector<SkySample>& samples) : samples_(samples) {
     const auto [total, total_sq] = checked_weights(samples);
-    const Kernel k = make_kernel(samples, total, total * total / total_sq, 0.0);
-    // The kernel's square root by its eigen-decomposition (a degenerate kernel, all samples on a line, is fine).
+    total_ = total;
+    n_eff_ = total * total / total_sq;
+    const Kernel k = make_kernel(samples, total, n_eff_, 0.0);
+    lon0_ = k.lon0;
+    lat0_ = k.lat0;
+    shrink_ = k.shrink;
+    mean_x_ = k.mean.x();
+    mean_y_ = k.mean.y();
+    // The kernel's square root by its eigen-decomposition (a degenerate kernel, all samples on a line, draws
+    // fine); its inverse with a floor of a milliarcsecond squared so that the density stays finite.
     Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> es(k.covariance);
-    const Eigen::Matrix2d root = es.eigenvectors() * es.eigenvalues().cwiseMax(0.0).cwiseSqrt().asDiagonal();
-    std::vector<double> cumulative(samples.size());
+    const Eigen::Vector2d ev = es.eigenvalues().cwiseMax(0.0);
+    const Eigen::Matrix2d root = es.eigenvectors() * ev.cwiseSqrt().asDiagonal();
+    const Eigen::Vector2d floored = ev.cwiseMax((1e-3 * arcsec) * (1e-3 * arcsec));
+    const Eigen::Matrix2d inverse = es.eigenvectors() * floored.cwiseInverse().asDiagonal() * es.eigenvectors().transpose();
+    for (int i = 0; i < 2; ++i)
+        for (int j = 0; j < 2; ++j) root_[i][j] = root(i, j), inverse_[i][j] = inverse(i, j);
+    norm_ = 1.0 / (2.0 * pi * std::sqrt(floored.x() * floored.y()));
+    cumulative_.resize(samples.size());
     double acc = 0.0;
-    for (std::size_t j = 0; j < samples.size(); ++j) cumulative[j] = acc += samples[j].weight;
+    for (std::size_t j = 0; j < samples.size(); ++j) cumulative_[j] = acc += samples[j].weight;
+}
+
+void SampleDensity::centre(const SkySample& x, double& cx, double& cy) const {
+    const Eigen::Vector2d d = tangent_offset(x.lon, x.lat, lon0_, lat0_);
+    cx = shrink_ * d.x() + (1.0 - shrink_) * mean_x_;
+    cy = shrink_ * d.y() + (1.0 - shrink_) * mean_y_;
+}
+
+std::vector<SkySample> SampleDensity::draw(int count, Rng& rng) const {
     std::vector<SkySample> out;
     out.reserve(static_cast<std::size_t>(std::max(count, 0)));
     for (int n = 0; n < count; ++n) {
-        const double u = uniform01(rng) * acc;
-        const auto it = std::upper_bound(cumulative.begin(), cumulative.end(), u);
-        const SkySample& x = samples[std::min<std::size_t>(static_cast<std::size_t>(it - cumulative.begin()), samples.size() - 1)];
+        const double u = uniform01(rng) * cumulative_.back();
+        const auto it = std::upper_bound(cumulative_.begin(), cumulative_.end(), u);
+        const SkySample& x = samples_[std::min<std::size_t>(static_cast<std::size_t>(it - cumulative_.begin()), samples_.size() - 1)];
         const double z1 = normal(rng), z2 = normal(rng);
-        const Eigen::Vector2d d = k.shrink * tangent_offset(x.lon, x.lat, k.lon0, k.lat0) + (1.0 - k.shrink) * k.mean +
-                                  root * Eigen::Vector2d(z1, z2);
-        out.push_back({wrap_two_pi(k.lon0 + d.x() / std::cos(k.lat0)), std::clamp(k.lat0 + d.y(), -pi / 2, pi / 2), 1.0});
+        double cx = 0.0, cy = 0.0;
+        centre(x, cx, cy);
+        cx += root_[0][0] * z1 + root_[0][1] * z2;
+        cy += root_[1][0] * z1 + root_[1][1] * z2;
+        out.push_back({wrap_two_pi(lon0_ + cx / std::cos(lat0_)), std::clamp(lat0_ + cy, -pi / 2, pi / 2), 1.0});
     }
     return out;
+}
+
+double SampleDensity::at(double lon, double lat) const {
+    const Eigen::Vector2d p = tangent_offset(lon, lat, lon0_, lat0_);
+    double sum = 0.0;
+    for (const SkySample& x : samples_) {
+        if (x.weight == 0.0) continue;
+        double cx = 0.0, cy = 0.0;
+        centre(x, cx, cy);
+        const double dx = p.x() - cx, dy = p.y() - cy;
+        const double q = inverse_[0][0] * dx * dx + 2.0 * inverse_[0][1] * dx * dy + inverse_[1][1] * dy * dy;
+        sum += x.weight * std::exp(-0.5 * q);
+    }
+    return norm_ * sum / total_;
+}
+
+double SampleDensity::rank_of(double lon, double lat, int count, Rng& rng) const {
+    const double here = at(lon, lat);
+    const std::vector<SkySample> d = draw(count, rng);
+    if (d.empty()) return NAN;
+    std::size_t above = 0;
+    for (const SkySample& x : d) above += at(x.lon, x.lat) > here;
+    return static_cast<double>(above) / static_cast<double>(d.size());
+}
+
+double SampleDensity::mass_within(double lon, double lat, double radius, int count, Rng& rng) const {
+    const std::vector<SkySample> d = draw(count, rng);
+    if (d.empty()) return NAN;
+    std::size_t inside = 0;
+    for (const SkySample& x : d) inside += separation(lon, lat, x.lon, x.lat) <= radius;
+    return static_cast<double>(inside) / static_cast<double>(d.size());
+}
+
+std::vector<SkySample> draw_from_sample_density(const std::vector<SkySample>& samples, int count, Rng& rng) {
+    return SampleDensity(samples).draw(count, rng);
 }
 
 SkyMap make_sky_map(const std::vector<SkySample>& samples, int nside) {

@@ -48,11 +48,38 @@ struct SkyMap {
 // zero total weight, and for an nside that is not a power of two in [1, max_sky_map_nside].
 SkyMap make_sky_map(const std::vector<SkySample>& samples, int nside);
 
-// Directions drawn from the density the map is made of (the kernel estimate above, without the pixel floor):
-// each draw picks a sample with probability proportional to its weight, centres that sample's kernel as the map
-// does and adds the kernel's Gaussian, so the draws keep the samples' mean and covariance (the smoothed bootstrap
-// of Liu & West 2001). The draws come from `rng` in order, so a seed gives the same draws everywhere. The same
-// errors as make_sky_map for bad samples; a negative count draws nothing.
+// The density the map is made of (the kernel estimate above, without the pixel floor), to draw from and to
+// evaluate. The same errors as make_sky_map for bad samples.
+class SampleDensity {
+public:
+    explicit SampleDensity(const std::vector<SkySample>& samples);
+    // Each draw picks a sample with probability proportional to its weight, centres that sample's kernel as the
+    // map does and adds the kernel's Gaussian, so the draws keep the samples' mean and covariance (the smoothed
+    // bootstrap of Liu & West 2001). The draws come from `rng` in order; a negative count draws nothing.
+    std::vector<SkySample> draw(int count, Rng& rng) const;
+    // The density at a direction, per square radian of the tangent plane.
+    double at(double lon, double lat) const;
+    // The rank of a direction in the map: the probability held by the smallest highest-density region that
+    // includes it (0 at the peak, near 1 far out), estimated from `count` draws as the share whose density exceeds
+    // the direction's (a standard error of at most 0.5 / sqrt(count)).
+    double rank_of(double lon, double lat, int count, Rng& rng) const;
+    // The probability within `radius` (radians) of a direction, from `count` draws.
+    double mass_within(double lon, double lat, double radius, int count, Rng& rng) const;
+    double effective_samples() const { return n_eff_; }
+
+private:
+    std::vector<SkySample> samples_;
+    double total_ = 0.0, n_eff_ = 0.0;
+    double lon0_ = 0.0, lat0_ = 0.0, shrink_ = 1.0;
+    double mean_x_ = 0.0, mean_y_ = 0.0;
+    double root_[2][2] = {{0, 0}, {0, 0}};  // the kernel covariance's square root
+    double inverse_[2][2] = {{0, 0}, {0, 0}};  // and its inverse
+    double norm_ = 0.0;                     // 1 / (2 pi sqrt(det))
+    std::vector<double> cumulative_;
+    void centre(const SkySample& x, double& cx, double& cy) const;  // a sample's kernel centre, tangent offsets
+};
+
+// SampleDensity(samples).draw(count, rng).
 std::vector<SkySample> draw_from_sample_density(const std::vector<SkySample>& samples, int count, Rng& rng);
 
 // Centre of a NESTED pixel (radians).

@@ -9,6 +9,8 @@
 
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
+#include "sim/base/random.hpp"
+#include "sim/predict/sky_map.hpp"
 
 namespace wayward {
 
@@ -58,6 +60,14 @@ Score score_prediction(const Brief& brief, const TruthEphemeris& truth_eph, cons
         s.mahalanobis = std::sqrt(std::max(d2, 0.0));
         s.truth_rank = 1.0 - std::exp(-0.5 * std::max(d2, 0.0));
         s.field_probability = gaussian_mass_in_circle(p.cov_ll, p.cov_lb, p.cov_bb, brief.field_radius_deg * 3600.0);
+    }
+    if (samples_describe_region(p)) {
+        std::vector<SkySample> bodies;
+        for (std::size_t k = 0; k < p.sample_lon.size(); ++k) bodies.push_back({p.sample_lon[k], p.sample_lat[k], p.sample_weight[k]});
+        const SampleDensity map(bodies);
+        Rng rng = make_rng(1, "score map");  // a fixed stream: the score of a solution is the same every time
+        s.map_truth_rank = map.rank_of(s.true_lon, s.true_lat, 4000, rng);
+        s.map_field_probability = map.mass_within(p.lon, p.lat, brief.field_radius_deg * deg, 20000, rng);
     }
     // Luck curve over the window (clipped to the span), on the prediction's own track where it has one.
     const double from = std::max(lo_year, p.epoch_year - window_years), to = std::min(hi_year, p.epoch_year + window_years);

@@ -32,6 +32,9 @@ struct Score {
     // smallest region of the stated distribution that includes the truth, 1 - exp(-d^2 / 2); and the probability
     // the field (a circle of the brief's field radius at the predicted point) covered.
     std::optional<double> truth_rank, field_probability;
+    // The same two by the solve's virtual bodies, where they describe the region (samples_describe_region): the
+    // map the search and the HEALPix file use, estimated from draws of its density (standard error <= 0.01).
+    std::optional<double> map_truth_rank, map_field_probability;
     std::vector<LuckPoint> luck;
     double luck_fraction_inside = 0.0;        // of the window, separation <= field radius
     double closest_year = 0.0, closest_arcmin = 0.0;
