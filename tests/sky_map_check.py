@@ -97,6 +97,11 @@ with tempfile.TemporaryDirectory() as work:
           "the CSV's first row is the peak pixel, at healpy's centre")
     check(abs(float(rows[-1]["cumulative"]) - 0.99) < 0.01 + float(rows[-1]["probability"]), "the CSV ends where 99 % is reached")
 
+    # The picture of the map: named in the printed line and a PNG file (its signature, PNG specification 5.2).
+    check("skymap.png" in line, "the printed line names skymap.png")
+    with open(os.path.join(ex, "skymap.png"), "rb") as fh:
+        check(fh.read(8) == b"\x89PNG\r\n\x1a\n", "skymap.png is a PNG file")
+
     if png:
         import matplotlib
         matplotlib.use("Agg")

@@ -11,6 +11,7 @@
 #include "sim/physics/geometry.hpp"
 #include "sim/record/record.hpp"
 #include "sim/report/sky_map_file.hpp"
+#include "sim/report/sky_map_plot.hpp"
 
 namespace wayward {
 
@@ -20,6 +21,7 @@ void check_sky_map_request(const std::string& dir, const std::string& form) {
     if (form != "flat" && form != "multiorder") throw InputError("", 0, "--sky-map-form", "\"" + form + "\" is not a form: flat or multiorder");
     refuse_link_at(dir + "/" + sky_map_fits_name, "--sky-map");
     refuse_link_at(dir + "/" + sky_map_regions_name, "--sky-map");
+    refuse_link_at(dir + "/" + sky_map_png_name, "--sky-map");
 }
 
 void write_sky_map(const std::string& dir, const Brief& brief, const std::string& scenario_name, const Prediction& p, std::ostream& out,
@@ -51,10 +53,12 @@ void write_sky_map(const std::string& dir, const Brief& brief, const std::string
     std::error_code ec;
     const double fits_mb = static_cast<double>(std::filesystem::file_size(fits_path, ec)) / 1e6;
     write_file_atomic(csv_path, sky_map_regions_csv(brief, p.epoch_year, map, ranked, regions, brief.imported() ? &to_fitting : nullptr));
+    const std::string png_path = dir + "/" + sky_map_png_name;
+    save_sky_map_png(brief, p, map, ranked, regions, brief.imported() ? &to_fitting : nullptr, png_path);
     out << "Sky map at " << fmt("%.2f", p.epoch_year) << " (nside " << nside << ", " << fmt("%.2f", sky_map_pixel_arcmin(nside))
         << " arcmin pixels, " << p.sample_lon.size() << " samples): 50/90/99 % regions " << fmt("%.4g", regions[0].area_deg2) << " / "
         << fmt("%.4g", regions[1].area_deg2) << " / " << fmt("%.4g", regions[2].area_deg2) << " square degrees; wrote " << fits_path << " ("
-        << (fits_form == SkyMapForm::multi_order ? "multi-order, " : "flat, ") << fmt("%.3g", fits_mb) << " MB), " << csv_path << "\n";
+        << (fits_form == SkyMapForm::multi_order ? "multi-order, " : "flat, ") << fmt("%.3g", fits_mb) << " MB), " << csv_path << ", " << png_path << "\n";
     if (fits_form == SkyMapForm::flat && fits_mb > 20.0)
         out << "  (--sky-map-form multiorder writes the same map as multi-order HEALPix cells: the empty sky in coarse cells, far smaller)\n";
     out << (brief.imported() ? "  (in ICRS, astrometric; pixels" : "  (in the observer planet's orbital plane, not ICRS; pixels")

@@ -13,6 +13,7 @@ namespace wayward {
 inline constexpr int min_sky_map_samples = 20;
 inline constexpr const char* sky_map_fits_name = "skymap.fits";
 inline constexpr const char* sky_map_regions_name = "skymap_regions.csv";
+inline constexpr const char* sky_map_png_name = "skymap.png";
 
 // Before the solve: InputError (field --sky-map) for a link or a non-file at either output name. (--samples is
 // at least 20 by the solve's own validation.)
