@@ -230,6 +230,9 @@ private:
         ImGui::TextColored(palette::to_imgui(s.hit ? palette::bluish_green : palette::text_dim), "%s against the field radius (%.0f\u2032)",
                            s.hit ? "HIT" : "MISS", s.field_radius_deg * 60.0);
         if (s.mahalanobis) ImGui::Text("normalised error %.2f\u03c3", *s.mahalanobis);
+        if (s.map_truth_rank)  // the virtual bodies' map, where it is not linear (sim's score)
+            ImGui::TextDisabled("truth's rank in the map %.0f%%; field covered %.0f%%", 100.0 * *s.map_truth_rank,
+                                100.0 * s.map_field_probability.value_or(0.0));
         if (sp->who == "your prediction" && c.marker.placed && c.marker.radius > 0)
             ImGui::TextDisabled("%s your own circle (r = %s)", s.separation_arcmin * arcmin <= c.marker.radius ? "inside" : "outside",
                                 format_deg(c.marker.radius, 2).c_str());
