@@ -14,6 +14,7 @@
 #include "sim/base/units.hpp"
 #include "sim/physics/geometry.hpp"
 #include "sim/predict/sky_map.hpp"
+#include "sim/score/stated_prediction.hpp"
 #include "sim/search/region.hpp"
 #include "sim/solve/solve.hpp"
 
@@ -258,4 +259,32 @@ TEST_CASE("virtual bodies: the map's rank of a direction and its mass in a circl
     }
     CHECK(map.rank_of(1.0 + 8.0 * deg, 0.0, 500, draws) == doctest::Approx(1.0));  // far out: everything is denser
     CHECK(map.effective_samples() == doctest::Approx(20000.0));
+}
+
+TEST_CASE("virtual bodies: a stated prediction may give its region as samples, weighted or not") {
+    const std::string head = "lon_deg = 57.3\nlat_deg = 0.5\nepoch_year = 2000.0\n";
+    // Without weights: equal; the samples become the region.
+    std::vector<Prediction> p = parse_stated_predictions(head + "sample_lon_deg = [57.0, 57.5, 58.0]\nsample_lat_deg = [0.4, 0.5, 0.6]\n", "p.toml");
+    REQUIRE(p.size() == 1);
+    CHECK(samples_describe_region(p[0]));
+    CHECK(p[0].samples_used == 3);
+    for (double w : p[0].sample_weight) CHECK(w == doctest::Approx(1.0 / 3.0));
+    CHECK(p[0].effective_samples == doctest::Approx(3.0));
+    // Weights on any scale are normalised.
+    p = parse_stated_predictions(head + "sample_lon_deg = [57.0, 57.5]\nsample_lat_deg = [0.4, 0.5]\nsample_weight = [3.0, 1.0]\n", "p.toml");
+    CHECK(p[0].sample_weight[0] == doctest::Approx(0.75));
+    CHECK(p[0].effective_samples == doctest::Approx(16.0 / 10.0));
+    // Bad sets are refused by field.
+    auto field_of = [&](const std::string& text) {
+        try {
+            (void)parse_stated_predictions(head + text, "p.toml");
+        } catch (const InputError& e) {
+            return e.field();
+        }
+        return std::string("(accepted)");
+    };
+    CHECK(field_of("sample_lon_deg = [57.0, 57.5]\nsample_lat_deg = [0.4]\n") == "sample_lon_deg");
+    CHECK(field_of("sample_lon_deg = [57.0]\nsample_lat_deg = [95.0]\n") == "sample_lat_deg");
+    CHECK(field_of("sample_lon_deg = [57.0, 58.0]\nsample_lat_deg = [0.4, 0.5]\nsample_weight = [1.0, -1.0]\n") == "sample_weight");
+    CHECK(field_of("sample_lon_deg = [57.0, 58.0]\nsample_lat_deg = [0.4, 0.5]\nsample_weight = [0.0, 0.0]\n") == "sample_weight");
 }

@@ -437,7 +437,7 @@ int run_score(const ScoreArgs& args, std::ostream& out, Score* scored) {
                                : near_star(ex.brief, p);
         if (const std::string c = near_star_caution(n, p.epoch_year); !c.empty()) out << c << "\n";
     }
-    if (!sc.mahalanobis && (own || !args.prediction_file.empty()))
+    if (!sc.mahalanobis && !sc.map_truth_rank && (own || !args.prediction_file.empty()))
         out << "(no region given with this prediction, so no normalised error, rank or covered probability: --radius or --ellipse add one)\n";
     if (sc.mahalanobis) {
         out << "Normalised error (Mahalanobis): " << *sc.mahalanobis << " sigma\n";
@@ -446,7 +446,8 @@ int run_score(const ScoreArgs& args, std::ostream& out, Score* scored) {
         out << "Probability the field covered, by the stated region: " << 100.0 * *sc.field_probability << "%\n" << std::setprecision(3);
     }
     if (sc.map_truth_rank)
-        out << "By the solve's virtual bodies (the map is not linear): rank of the truth " << std::setprecision(1) << 100.0 * *sc.map_truth_rank
+        out << (own || !args.prediction_file.empty() ? "By the stated samples' map: rank of the truth "
+                                                      : "By the solve's virtual bodies (the map is not linear): rank of the truth ") << std::setprecision(1) << 100.0 * *sc.map_truth_rank
             << "%, the field covered " << 100.0 * *sc.map_field_probability << "%\n" << std::setprecision(3);
     out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
         << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "

@@ -4,6 +4,7 @@
 
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
+#include "sim/solve/solve.hpp"
 
 namespace wayward {
 
@@ -45,6 +46,7 @@ Prediction read_stated_prediction(detail::TableReader& r) {
                                         r.required_number("position_angle_deg")};
     set_stated_region(p, radius, ellipse, [&r](const std::string& field, const std::string& why) { r.fail(field, why); }, "radius_arcmin",
                       ellipse && !radius ? "sigma_major_arcmin" : "position_angle_deg");
+    read_virtual_bodies(r, p, true);
     return p;
 }
 

@@ -1,5 +1,5 @@
 // A prediction stated by a team rather than made by Wayward's solver (a trainee's guess, or another program's
-// answer): a point at an epoch and, optionally, its region as a circle holding 90 % or a 1-sigma ellipse. Read
+// answer): a point at an epoch and, optionally, its region as a circle holding 90 %, a 1-sigma ellipse or samples. Read
 // from the command line or from a small TOML file (one table, or [[prediction]] tables for several epochs).
 // Units: degrees, arcmin, years.
 #pragma once
@@ -23,7 +23,9 @@ void set_stated_region(Prediction& p, std::optional<double> radius_arcmin, std::
                        const std::string& ellipse_field);
 
 // One stated prediction from a table: lon_deg, lat_deg, epoch_year, and radius_arcmin or sigma_major_arcmin,
-// sigma_minor_arcmin, position_angle_deg (both optional). Errors name the file, line and field.
+// sigma_minor_arcmin, position_angle_deg (both optional), and optionally samples of its region: sample_lon_deg,
+// sample_lat_deg and sample_weight (weights optional: equal), scored through their kernel density as a solve's
+// virtual bodies are. Errors name the file, line and field.
 Prediction read_stated_prediction(detail::TableReader& r);
 
 // A prediction file's text: its top level is one prediction, or it holds [[prediction]] tables (one per epoch).

@@ -113,36 +113,44 @@ std::string solution_toml(const Solution& s) {
     return ss.str();
 }
 
-namespace {
-
-// The [prediction] table's virtual bodies (sample_lon_deg, sample_lat_deg, sample_weight; absent in files from
-// before they were kept) and effective_samples.
-void read_virtual_bodies(detail::TableReader& r, Prediction& p) {
+void read_virtual_bodies(detail::TableReader& r, Prediction& p, bool stated) {
     const auto ls = r.numbers("sample_lon_deg").value_or(std::vector<double>{});
     const auto bs = r.numbers("sample_lat_deg").value_or(std::vector<double>{});
-    const auto ws = r.numbers("sample_weight").value_or(std::vector<double>{});
+    auto ws = r.numbers("sample_weight").value_or(std::vector<double>{});
+    if (stated && ws.empty() && !ls.empty()) ws.assign(ls.size(), 1.0);  // a stated set without weights: equal
     if (ls.size() != bs.size() || ls.size() != ws.size()) r.fail("sample_lon_deg", "the sample arrays differ in length");
-    if (!ls.empty() && ls.size() != static_cast<std::size_t>(p.samples_used))
+    constexpr std::size_t max_bodies = 100000;
+    if (ls.size() > max_bodies) r.fail("sample_lon_deg", "holds more than " + std::to_string(max_bodies) + " samples");
+    if (!stated && !ls.empty() && ls.size() != static_cast<std::size_t>(p.samples_used))
         r.fail("sample_lon_deg", "holds " + std::to_string(ls.size()) + " samples but samples = " + std::to_string(p.samples_used));
-    double total = 0.0;
+    double total = 0.0, total_sq = 0.0;
     for (std::size_t k = 0; k < ls.size(); ++k) {
         if (!std::isfinite(ls[k])) r.fail("sample_lon_deg", "entry " + std::to_string(k + 1) + " is not a finite number");
         if (!(bs[k] >= -90.0 && bs[k] <= 90.0)) r.fail("sample_lat_deg", "entry " + std::to_string(k + 1) + " must be in [-90, 90]");
-        if (!(ws[k] >= 0.0 && ws[k] <= 1.0)) r.fail("sample_weight", "entry " + std::to_string(k + 1) + " must be in [0, 1]");
+        if (!(ws[k] >= 0.0 && (stated ? std::isfinite(ws[k]) : ws[k] <= 1.0)))
+            r.fail("sample_weight", "entry " + std::to_string(k + 1) + (stated ? " must be a finite number >= 0" : " must be in [0, 1]"));
         total += ws[k];
+        total_sq += ws[k] * ws[k];
+    }
+    if (!ls.empty() && !stated && !(std::abs(total - 1.0) <= 1e-6)) r.fail("sample_weight", "the weights must add up to 1");
+    if (!ls.empty() && stated && !(total > 0.0)) r.fail("sample_weight", "the weights add up to zero");
+    for (std::size_t k = 0; k < ls.size(); ++k) {
         p.sample_lon.push_back(wrap_two_pi(ls[k] * deg));
         p.sample_lat.push_back(bs[k] * deg);
-        p.sample_weight.push_back(ws[k]);
+        p.sample_weight.push_back(stated ? ws[k] / total : ws[k]);
     }
-    if (!ls.empty() && !(std::abs(total - 1.0) <= 1e-6)) r.fail("sample_weight", "the weights must add up to 1");
-    if (r.has("effective_samples")) {
+    if (stated && !ls.empty()) {
+        // A stated set of samples is the region itself (samples_describe_region), as a solve's are where its map
+        // is not linear.
+        p.samples_used = p.samples_in_full = static_cast<int>(ls.size());
+        p.effective_samples = total * total / total_sq;
+    }
+    if (!stated && r.has("effective_samples")) {
         p.effective_samples = r.number_or("effective_samples", NAN);
         if (!(p.effective_samples >= 0.0 && p.effective_samples <= static_cast<double>(std::max(p.samples_used, 1)) * (1.0 + 1e-9)))
             r.fail("effective_samples", "must be between 0 and the number of samples");
     }
 }
-
-}  // namespace
 
 Solution load_solution(const std::string& path) {
     const toml::table root_t = detail::parse_toml(detail::read_text_file(path), path);
@@ -223,7 +231,7 @@ Solution load_solution(const std::string& path) {
             if (!(bs[k] >= -90.0 && bs[k] <= 90.0)) r.fail("track_lat_deg", "must be in [-90, 90]");
             p.track.push_back({ys[k], ls[k] * deg, bs[k] * deg});
         }
-        read_virtual_bodies(r, p);
+        read_virtual_bodies(r, p, false);
         r.finish();
     }
     for (const toml::table* t : root.tables("minimum")) {

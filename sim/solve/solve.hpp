@@ -22,6 +22,7 @@
 #include <memory>
 
 #include "sim/fit/known_fit.hpp"
+#include "sim/io/toml_reader.hpp"
 #include "sim/predict/predict.hpp"
 #include "sim/solve/detection.hpp"
 #include "sim/solve/solve_options.hpp"
@@ -83,5 +84,10 @@ PredictOptions prediction_options(const SolveOptions& options);
 // solution.toml
 std::string solution_toml(const Solution& s);
 Solution load_solution(const std::string& path);
+// A [prediction] table's virtual bodies: sample_lon_deg, sample_lat_deg, sample_weight (degrees; absent in
+// solution files from before they were kept). In a solution file the weights add up to 1 and their number is the
+// table's `samples`; a `stated` set (a team's own prediction) may leave the weights out (equal) or give any
+// non-negative scale, and becomes the prediction's region. Errors name the field.
+void read_virtual_bodies(detail::TableReader& r, Prediction& p, bool stated);
 
 }  // namespace wayward
