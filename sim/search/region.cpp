@@ -38,8 +38,6 @@ SearchRegion region_from_solution(const Solution& s, int count, std::uint64_t se
     r.sigma_major = p.semi_major_arcsec * arcsec;
     r.sigma_minor = p.semi_minor_arcsec * arcsec;
     r.orientation = p.orientation_deg * deg;
-    // Samples of N(0, C) through the Cholesky factor of C (arcsec^2 -> radians^2); a floor of 1 arcsec keeps a
-    // degenerate covariance drawable.
     Rng rng = make_rng(seed, "search region");
     r.samples.reserve(static_cast<std::size_t>(std::max(count, 0)));
     if (samples_describe_region(p)) {
@@ -71,6 +69,8 @@ SearchRegion region_from_solution(const Solution& s, int count, std::uint64_t se
         }
         return r;
     }
+    // Samples of N(0, C) through the Cholesky factor of C (arcsec^2 -> radians^2); a floor of 1 arcsec keeps a
+    // degenerate covariance drawable.
     const double a = std::max(p.cov_ll, 1.0), b = p.cov_lb, c = std::max(p.cov_bb, 1.0);
     const double l11 = std::sqrt(a), l21 = b / l11, l22 = std::sqrt(std::max(c - l21 * l21, 1e-6 * c));
     for (int k = 0; k < count; ++k) {
