@@ -32,7 +32,7 @@ Command add_ephemeris(CLI::App& app) {
     c->add_option("scenario", eph.scenario, "scenario file (TOML)")->required();
     c->add_option("--at", eph.at, "times, comma-separated: days after epoch 0 (365.25 or 365.25d), years (1955.25yr) or dates (1955-03-21)")->delimiter(',')->required();
     c->add_option("--seed", eph.seed, "seed for scenarios that draw their values")->capture_default_str();
-    c->add_option("--method", eph.method, "integration method (rkf78, dopri5, bulirsch-stoer)")->capture_default_str();
+    c->add_option("--method", eph.method, "integration method (gauss-radau, rkf78, dopri5, bulirsch-stoer)")->capture_default_str();
     return {c, [args] { return run_ephemeris(*args, std::cout); }};
 }
 
@@ -188,7 +188,9 @@ Command add_budget(CLI::App& app) {
 
 }  // namespace
 
-int main(int argc, char** argv) {
+namespace {
+
+int run(int argc, char** argv) {
     CLI::App app{"wayward: rehearse the prediction of an unseen planet from the pull it exerts on planets you can see"};
     app.set_version_flag("--version", std::string("wayward ") + WAYWARD_VERSION);
     app.require_subcommand(1);
@@ -227,4 +229,17 @@ int main(int argc, char** argv) {
         return 3;  // a computation or system failure, not the input's fault
     }
     return 0;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+    // Building the command line's options allocates too: under a tight memory cap that can fail before any
+    // command runs, and must still end with the out-of-memory status, not an abort.
+    try {
+        return run(argc, argv);
+    } catch (const std::bad_alloc&) {
+        std::cerr << "wayward: error: out of memory (the computation needed more than the machine or --max-memory allows)\n";
+        return 3;
+    }
 }
