@@ -167,9 +167,9 @@ IntegrationOutcome drive_radau(const Rhs& rhs, const StateType& x, double t0, do
     const double tiny = 1e-12 * std::max(1.0, std::abs(t1 - t0));
     StateType now(6 * n);
     std::vector<double> poly;
-    // Room for steps as short as the first one on average (the runs take fewer, longer ones), so that the node
-    // arrays are not copied as they grow; untouched capacity costs no memory.
-    const auto expected = static_cast<std::size_t>(std::min(1e6, std::abs(t1 - t0) / std::max(first_step, 1e-300))) + 2;
+    // Room for the steps a run usually takes (about four times the first step's length), so that the node arrays
+    // are not copied as they grow; capped, as address space counts against a memory limit even untouched.
+    const auto expected = static_cast<std::size_t>(std::min(2e4, std::abs(t1 - t0) / std::max(4.0 * first_step, 1e-300))) + 2;
     rec.times.reserve(expected);
     rec.states.reserve(6 * n * expected);
     rec.accels.reserve(3 * n * expected);
