@@ -202,6 +202,7 @@ int export_truth_run(const TruthExportOptions& o) {
     opt.max_step_fraction = o.step_fraction;
     opt.method = o.method;
     opt.rel_tol = o.rel_tol;
+    opt.step_precision = o.step_precision;
     std::vector<double> seconds, cpu_seconds;
     IntegrationResult run;
     for (int k = 0; k < std::max(1, o.repeats); ++k) {
@@ -233,6 +234,7 @@ int export_truth_run(const TruthExportOptions& o) {
     out << ",\n  \"state0\": ";
     write_array(out, sys.state);
     out << ",\n  \"ours\": {\"method\": \"" << opt.method << "\", \"rel_tol\": " << opt.rel_tol << ", \"abs_tol\": " << opt.abs_tol
+        << ", \"step_precision\": " << opt.step_precision
         << ", \"max_step_days\": " << shortest_period(sys) * opt.max_step_fraction << ", \"steps\": " << run.steps
         << ", \"rejected_steps\": " << run.rejected_steps << ", \"rhs_calls\": " << run.rhs_calls << ",\n    \"seconds\": ";
     write_array(out, seconds);

@@ -16,6 +16,7 @@ struct TruthExportOptions {
     double step_fraction = IntegratorOptions{}.max_step_fraction;  // our run's step cap (default: the truth default)
     std::string method = IntegratorOptions{}.method;              // our run's method and tolerance (default: the truth's)
     double rel_tol = IntegratorOptions{}.rel_tol;
+    double step_precision = IntegratorOptions{}.step_precision;
     // The reference that judges both end states: RKF 7(8) in long double with a fixed step of this fraction of
     // the shortest period, and once more with twice the step to estimate its own error. (The default truth run
     // takes every step at its cap, so a tighter tolerance alone would change nothing, and in double precision

@@ -18,8 +18,9 @@ namespace {
 
 void print_usage() {
     std::cout << "wayward_bench [Google Benchmark flags, e.g. --benchmark_filter=REGEX]\n"
-                 "wayward_bench --export-truth=FILE [--repeats=N] [--step-fraction=X] [--method=NAME] [--rel-tol=X] [--reference-step-fraction=X]\n"
-                 "  (step fractions: the step cap as a fraction of the shortest orbital period)\n";
+                 "wayward_bench --export-truth=FILE [--repeats=N] [--step-fraction=X] [--method=NAME] [--rel-tol=X] [--step-precision=X] [--reference-step-fraction=X]\n"
+                 "  (step fractions: the step cap as a fraction of the shortest orbital period; step precision: the\n"
+                 "  Gauss-Radau step control's epsilon)\n";
 }
 
 // Value of "--name=value" if `arg` is that flag.
@@ -51,6 +52,8 @@ int main(int argc, char** argv) {
                 exp.method = v;
             } else if (flag_value(arg, "--rel-tol", v)) {
                 exp.rel_tol = std::stod(v);
+            } else if (flag_value(arg, "--step-precision", v)) {
+                exp.step_precision = std::stod(v);
             } else if (flag_value(arg, "--reference-step-fraction", v)) {
                 exp.reference_step_fraction = std::stod(v);
             } else {

@@ -32,7 +32,7 @@ Command add_ephemeris(CLI::App& app) {
     c->add_option("scenario", eph.scenario, "scenario file (TOML)")->required();
     c->add_option("--at", eph.at, "times, comma-separated: days after epoch 0 (365.25 or 365.25d), years (1955.25yr) or dates (1955-03-21)")->delimiter(',')->required();
     c->add_option("--seed", eph.seed, "seed for scenarios that draw their values")->capture_default_str();
-    c->add_option("--method", eph.method, "integration method (rkf78, dopri5, bulirsch-stoer)")->capture_default_str();
+    c->add_option("--method", eph.method, "integration method (gauss-radau, rkf78, dopri5, bulirsch-stoer)")->capture_default_str();
     return {c, [args] { return run_ephemeris(*args, std::cout); }};
 }
 
@@ -188,6 +188,8 @@ Command add_budget(CLI::App& app) {
 
 }  // namespace
 
+namespace {
+
 // Parses the command line and runs the command; main() only turns what escapes into an exit status.
 int run(int argc, char** argv) {
     CLI::App app{"wayward: rehearse the prediction of an unseen planet from the pull it exerts on planets you can see"};
@@ -218,6 +220,8 @@ int run(int argc, char** argv) {
         if (c.app->parsed()) return c.run();
     return 0;
 }
+
+}  // namespace
 
 int main(int argc, char** argv) {
     // Everything, the command-line setup included, runs inside the handlers: out of memory at any point is exit

@@ -16,7 +16,7 @@ struct EphemerisArgs {
     std::string scenario;
     std::vector<std::string> at;  // each: days after epoch 0 (365.25 or 365.25d), a year (1955.25yr) or a date (1955-03-21)
     std::uint64_t seed = 1;
-    std::string method = "rkf78";
+    std::string method = "gauss-radau";  // the truth default (IntegratorOptions)
 };
 int run_ephemeris(const EphemerisArgs& args, std::ostream& out);
 // One time given on the command line, in days after epoch 0: "D" or "Dd" (days), "Yyr" (a decimal year, as the

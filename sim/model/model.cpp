@@ -104,6 +104,7 @@ ModelSetup make_setup(const Exercise& ex, const ModelOptions& options) {
     s.t_begin = t_min - 2.0;
     s.t_end = std::max(t_max, 0.0);
     IntegratorOptions io;
+    io.method = "rkf78";  // the fitting model's adaptive integrator, tuned by rel_tol (the truth's default differs)
     io.rel_tol = options.rel_tol;
     const IntegrationResult inner = integrate(s.known, s.t_begin, std::max(span_end, s.t_end), io);
     if (inner.outcome != IntegrationOutcome::ok)
@@ -222,6 +223,7 @@ ModelRun run_model(const ModelSetup& setup, const ModelState& state, double t_en
         return run;
     }
     IntegratorOptions io;
+    io.method = "rkf78";  // see make_setup
     io.rel_tol = setup.options.rel_tol;
     io.central_quadrupole = setup.pair_quadrupole;
     // A trial orbit that runs into a close encounter must fail fast (the fit then rejects the step), not fill

@@ -8,6 +8,7 @@
 #include <boost/numeric/odeint.hpp>
 
 #include "sim/base/units.hpp"
+#include "sim/physics/gauss_radau.hpp"
 
 namespace wayward {
 
@@ -16,7 +17,8 @@ using StateType = std::vector<double>;
 
 const std::vector<IntegratorMethod>& integrator_methods() {
     static const std::vector<IntegratorMethod> methods = {
-        {"rkf78", "Runge-Kutta-Fehlberg 7(8), adaptive; the default truth integrator", 8},
+        {"gauss-radau", "Gauss-Radau 15th order (Everhart 1985), adaptive; the default truth integrator", 15},
+        {"rkf78", "Runge-Kutta-Fehlberg 7(8), adaptive", 8},
         {"dopri5", "Dormand-Prince 5(4), adaptive; cheaper per step, more steps at tight tolerance", 5},
         {"bulirsch-stoer", "Bulirsch-Stoer extrapolation, adaptive order; few, long, costly steps", 0},
     };
@@ -89,6 +91,7 @@ struct Recorder {
     const std::vector<double>* gm;
     const CentralQuadrupole* quad = nullptr;
     std::vector<double> times = {}, states = {}, accels = {}, jerks = {};
+    std::vector<double> step_poly = {};  // Gauss-Radau only: per step, see Ephemeris::step_poly
     std::vector<double> pos = {}, acc = {}, jerk = {};  // scratch, reused for every node
     void record(double t, const StateType& x) {
         times.push_back(t);
@@ -141,8 +144,67 @@ IntegrationOutcome drive(Controlled& stepper, const Rhs& rhs, StateType x, doubl
     return IntegrationOutcome::ok;
 }
 
+// One direction of Gauss-Radau integration from (t0, x) to t1, recording every accepted step and its polynomial.
+// The step starts at `first_step` and then follows the stepper's own control (no cap: the dense output is the
+// step's own polynomial).
+IntegrationOutcome drive_radau(const Rhs& rhs, const StateType& x, double t0, double t1, double first_step,
+                               const IntegratorOptions& o, Recorder& rec, IntegrationResult& result) {
+    const std::size_t n = rhs.gm->size();
+    GaussRadau15 stepper(
+        n,
+        [&](const double* pos, double* acc) {
+            ++*rhs.calls;
+            nbody_accelerations(n, rhs.gm->data(), pos, acc);
+            if (rhs.quad) add_central_quadrupole(*rhs.quad, *rhs.gm, pos, 3, acc, 3);
+        },
+        o.step_precision);
+    stepper.start(x);
+    const double dir = t1 >= t0 ? 1.0 : -1.0;
+    double t = t0;
+    double dt = dir * std::min(first_step, std::abs(t1 - t0));
+    rec.record(t, x);
+    if (t1 == t0) return IntegrationOutcome::ok;
+    const double tiny = 1e-12 * std::max(1.0, std::abs(t1 - t0));
+    StateType now(6 * n);
+    std::vector<double> poly;
+    // Room for the steps a run usually takes (about four times the first step's length), so that the node arrays
+    // are not copied as they grow; capped, as address space counts against a memory limit even untouched.
+    const auto expected = static_cast<std::size_t>(std::min(2e4, std::abs(t1 - t0) / std::max(4.0 * first_step, 1e-300))) + 2;
+    rec.times.reserve(expected);
+    rec.states.reserve(6 * n * expected);
+    rec.accels.reserve(3 * n * expected);
+    rec.jerks.reserve(3 * n * expected);
+    rec.step_poly.reserve((2 + 30 * n) * expected);
+    while (dir * (t1 - t) > 0.0) {
+        if (result.steps + result.rejected_steps >= o.max_steps) return IntegrationOutcome::too_many_steps;
+        const double remaining = t1 - t;
+        if (std::abs(dt) > std::abs(remaining)) dt = remaining;
+        dt = (t + dt) - t;  // as in drive(): no drift in time over many steps
+        if (stepper.try_step(dt)) {
+            ++result.steps;
+            stepper.state(now);
+            if (!finite_state(now)) return IntegrationOutcome::non_finite_state;
+            const double t_start = t;
+            t += dt;
+            if (std::abs(t1 - t) < tiny) t = t1;
+            stepper.step_polynomial(poly);
+            rec.step_poly.push_back(t_start);
+            rec.step_poly.push_back(t - t_start);
+            rec.step_poly.insert(rec.step_poly.end(), poly.begin(), poly.end());
+            rec.record(t, now);
+        } else {
+            ++result.rejected_steps;
+            if (std::abs(dt) < tiny) return IntegrationOutcome::step_size_underflow;
+        }
+        dt = stepper.next_step();
+        if (!std::isfinite(dt)) return IntegrationOutcome::non_finite_state;
+    }
+    return IntegrationOutcome::ok;
+}
+
 IntegrationOutcome drive_method(const std::string& method, const Rhs& rhs, const StateType& x, double t0, double t1,
                                 double max_step, const IntegratorOptions& o, Recorder& rec, IntegrationResult& result) {
+    if (method == "gauss-radau") return drive_radau(rhs, x, t0, t1, max_step, o, rec, result);
     if (method == "rkf78") {
         auto st = odeint::make_controlled(o.abs_tol, o.rel_tol, odeint::runge_kutta_fehlberg78<StateType>());
         return drive(st, rhs, x, t0, t1, max_step, o.max_steps, rec, result);
@@ -236,6 +298,18 @@ StateVector Ephemeris::state(std::size_t body, double t) const {
     if (k1 >= times.size()) k1 = times.size() - 1;
     if (k1 == 0) k1 = 1;
     const std::size_t k0 = k1 - 1;
+    if (!step_poly.empty()) {
+        // The Gauss-Radau step's own polynomial, anchored where that step began (the later node for steps
+        // taken backwards in time).
+        const double* p = &step_poly[k0 * (2 + 30 * n)];
+        const double s = (t - p[0]) / p[1];
+        StateVector out;
+        double pos[3], vel[3];
+        gauss_radau_evaluate(p + 2 + 30 * body, p[1], s, pos, vel);
+        out.position = Vec3(pos[0], pos[1], pos[2]);
+        out.velocity = Vec3(vel[0], vel[1], vel[2]);
+        return out;
+    }
     const double h = times[k1] - times[k0];
     const double s = (t - times[k0]) / h;
     const Hermite7 b(s);
