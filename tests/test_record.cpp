@@ -8,6 +8,7 @@
 #include <random>
 #include <sstream>
 #include <string>
+#include <vector>
 
 #include <erfa.h>
 
@@ -16,6 +17,7 @@
 #include "sim/base/units.hpp"
 #include "sim/commands/commands.hpp"
 #include "sim/commands/record_command.hpp"
+#include "sim/io/fileio.hpp"
 #include "sim/physics/geometry.hpp"
 #include "sim/record/record.hpp"
 #include "sim/record/sky_frames.hpp"
@@ -147,6 +149,38 @@ TEST_CASE("an error ellipse keeps its size through a rotation of frames") {
     }
 }
 
+namespace {
+// fields.csv of an imported folder: its ICRS centres are its ecliptic ones rotated (to the file's 1e-6 deg),
+// the shares add up, and no field is nearer the star than the limit.
+void check_field_list(const fs::path& file, double elongation_limit_deg) {
+    std::istringstream text(detail::read_text_file(file.string()));
+    std::string line;
+    std::getline(text, line);
+    REQUIRE(line == "order,field,ra_deg,dec_deg,ra_hms,dec_dms,ecl_lon_deg,ecl_lat_deg,probability,added,cumulative,elongation_deg");
+    double sum = 0.0, last = 0.0;
+    int rows = 0;
+    while (std::getline(text, line)) {
+        std::vector<std::string> c;
+        std::stringstream cells(line);
+        for (std::string cell; std::getline(cells, cell, ',');) c.push_back(cell);
+        REQUIRE(c.size() == 12);
+        ++rows;
+        CHECK(std::stoi(c[0]) == rows);
+        const FramedSky ecl = rotate_sky({std::stod(c[2]), std::stod(c[3]), std::nullopt, std::nullopt}, icrs_to_ecliptic_j2000());
+        CHECK(separation(ecl.lon_deg * deg, ecl.lat_deg * deg, std::stod(c[6]) * deg, std::stod(c[7]) * deg) / deg < 2e-6);
+        CHECK(parse_right_ascension(c[4]) == doctest::Approx(std::stod(c[2])).epsilon(1e-7));
+        CHECK(parse_declination(c[5]) == doctest::Approx(std::stod(c[3])).epsilon(1e-6));
+        sum += std::stod(c[9]);
+        last = std::stod(c[10]);
+        CHECK(last == doctest::Approx(sum).epsilon(1e-5));
+        CHECK(std::stod(c[9]) <= std::stod(c[8]) + 1e-6);
+        CHECK(std::stod(c[11]) >= elongation_limit_deg);
+    }
+    CHECK(rows >= 1);
+    CHECK(last > 0.5);
+}
+}  // namespace
+
 TEST_CASE("the round trip: an invented exercise in the record form, imported back, solves to the same answer") {
     const fs::path base = fs::temp_directory_path() / ("wayward-roundtrip-" + std::to_string(::getpid()));
     const fs::path ex = base / "exercise", rec = base / "record", imp = base / "imported";
@@ -188,7 +222,8 @@ TEST_CASE("the round trip: an invented exercise in the record form, imported bac
     CHECK(sb.prediction.semi_major_arcsec == doctest::Approx(sa.prediction.semi_major_arcsec).epsilon(1e-5));
     CHECK(sb.exercise_sha256 == b.brief.record_sha256);
 
-    // The imported solve prints the pointing in ICRS with the caution; score and search refuse (no truth).
+    // The imported solve prints the pointing in ICRS with the caution; score refuses (no truth) and search lists
+    // the fields to point at instead of rehearsing.
     const auto solved = testing::run_cli("solve " + imp.string() + " --quiet --out " + (base / "again.toml").string());
     CHECK(solved.output.find("ICRS (astrometric) at ") != std::string::npos);
     CHECK(solved.output.find("cross-check this with the team's own orbit-determination") != std::string::npos);
@@ -196,8 +231,11 @@ TEST_CASE("the round trip: an invented exercise in the record form, imported bac
     CHECK(scored.status == 2);
     CHECK(scored.output.find("no truth to score against") != std::string::npos);
     const auto searched = testing::run_cli("search " + imp.string());
-    CHECK(searched.status == 2);
-    CHECK(searched.output.find("cannot be rehearsed") != std::string::npos);
+    REQUIRE(searched.status == 0);
+    CHECK(searched.output.find("no sealed truth here, so no rehearsal") != std::string::npos);
+    CHECK(searched.output.find("cross-check these fields with the team's own") != std::string::npos);
+    check_field_list(imp / "search" / "fields.csv", b.brief.elongation_limit_deg);
+    CHECK(testing::run_cli("search " + imp.string() + " --strategy sweep").status == 2);
     // Importing over an existing exercise needs --force.
     CHECK_THROWS_WITH_AS(run_import({rec.string(), imp.string(), false}, sink), doctest::Contains("--force"), InputError);
     fs::remove_all(base);

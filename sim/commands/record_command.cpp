@@ -35,7 +35,8 @@ int run_import(const ImportArgs& args, std::ostream& out) {
     out << "Search epoch(s):";
     for (double y : b.search_epochs_year) out << " " << iso_calendar_tdb(jd_from_julian_epoch(y)) << " TDB";
     out << "\n";
-    out << "No answer key: `residuals` and `solve` work on this folder; `score` and `search` need a sealed truth and refuse.\n";
+    out << "No answer key: `residuals` and `solve` work on this folder; `search` lists the fields to point at (no rehearsal);\n"
+           "`score` needs a sealed truth and refuses.\n";
     return 0;
 }
 

@@ -101,6 +101,18 @@ std::string search_idle_line(const RehearsalResult& r, double elongation_limit_d
     return s + ".\n";
 }
 
+std::string search_folder(const std::string& exercise_dir) {
+    const std::string dir = exercise_dir + "/search";
+    std::error_code ec;
+    // A link planted at search/ would carry every file written there out of the exercise folder.
+    if (std::filesystem::is_symlink(dir, ec))
+        throw InputError(dir, 0, "DIR", "is a symbolic link; remove it (the search writes its files in a real folder)");
+    std::filesystem::create_directories(dir, ec);
+    if (ec) throw InputError(dir, 0, "", "cannot create the folder: " + ec.message());
+    if (!std::filesystem::is_directory(dir, ec)) throw InputError(dir, 0, "DIR", "is not a folder");
+    return dir;
+}
+
 namespace {
 
 std::string summary_text(const RehearsalResult& r, const Brief& b, const Telescope& tel, const SearchArgs& args,
@@ -161,16 +173,14 @@ std::string summary_text(const RehearsalResult& r, const Brief& b, const Telesco
 int run_search(const SearchArgs& args, std::ostream& out) {
     // Read and check everything first: nothing is written unless all of it is good.
     const Exercise ex = load_exercise(args.dir);
-    if (ex.brief.imported())
-        throw InputError(ex.brief.file, 0, "exercise.record_sha256",
-                         "this folder was imported from a survey record: with no sealed truth there is no hidden body to place "
-                         "among the stars, so the search cannot be rehearsed here");
     const std::string sol_path = args.solution.empty() ? args.dir + "/solution.toml" : args.solution;
     if (!std::filesystem::exists(sol_path))
         throw InputError(sol_path, 0, "", "no solution here: run `wayward solve " + args.dir + "` first, or give --solution");
     const Solution solution = load_solution(sol_path);
     if (solution.exercise_sha256 != ex.brief.identity_sha256())
         throw InputError(sol_path, 0, "solution.exercise_sha256", "this solution belongs to another exercise");
+    // A record brought in with `import` has no sealed truth to place among the stars: its fields are listed instead.
+    if (ex.brief.imported()) return run_field_list(args, ex, solution, out);
     Telescope tel;
     if (!args.telescope_file.empty()) tel = load_telescope(args.telescope_file);
     else if (ex.brief.telescope) tel = *ex.brief.telescope;
@@ -195,14 +205,7 @@ int run_search(const SearchArgs& args, std::ostream& out) {
     const RehearsalResult r = run_rehearsal(ex.brief, solution, tel, key, opt);
     const std::string summary = summary_text(r, ex.brief, tel, args, strategy_name, opt.start_year);
 
-    const std::string dir = args.dir + "/search";
-    std::error_code ec;
-    // A link planted at search/ would carry every file written below out of the exercise folder.
-    if (std::filesystem::is_symlink(dir, ec))
-        throw InputError(dir, 0, "DIR", "is a symbolic link; remove it (the search writes its files in a real folder)");
-    std::filesystem::create_directories(dir, ec);
-    if (ec) throw InputError(dir, 0, "", "cannot create the folder: " + ec.message());
-    if (!std::filesystem::is_directory(dir, ec)) throw InputError(dir, 0, "DIR", "is not a folder");
+    const std::string dir = search_folder(args.dir);
     const WriterLock lock(dir, "DIR", LockWait::wait);  // one writer at a time; leftovers of killed runs swept
     remove_stale_temporaries(dir);
     write_file_atomic(dir + "/plan.csv", search_plan_csv(r));

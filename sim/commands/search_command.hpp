@@ -1,4 +1,5 @@
-// `wayward search DIR`: the telescope search rehearsed between solve and score. Reads the brief, the team's
+// `wayward search DIR`: the telescope search rehearsed between solve and score (for a folder imported from a
+// survey record, which has no truth to rehearse against, a list of fields instead: run_field_list). Reads the brief, the team's
 // solution and its telescope (the brief's, or --telescope FILE), plans and runs the nights against the sealed
 // truth, and writes DIR/search/plan.csv, log.csv, nights.csv, candidates.csv, rehearsal.toml (seed and telescope),
 // summary.txt and search.png. Every input is read and checked
@@ -24,6 +25,13 @@ struct SearchArgs {
 };
 int run_search(const SearchArgs& args, std::ostream& out);
 
+struct Exercise;
+struct Solution;
+// For a folder imported from a survey record (no sealed truth, nothing to rehearse): the region's fields at one
+// date (--start, default the solution's epoch), most probable first, their centres in ICRS, none within the
+// elongation limit; writes DIR/search/fields.csv and fields.txt. Nights are left to the observatory's tools.
+int run_field_list(const SearchArgs& args, const Exercise& ex, const Solution& solution, std::ostream& out);
+
 struct RehearsalResult;
 // The files' texts (public for the tests' byte-for-byte comparisons).
 std::string search_plan_csv(const RehearsalResult& r);
@@ -34,6 +42,9 @@ std::string search_candidates_csv(const RehearsalResult& r);   // where each vis
 // When the whole search could search no field: one line saying so and counting the nights by reason (the
 // region within the elongation limit, no darkness, too low, cloudy); "" when any field was searched.
 std::string search_idle_line(const RehearsalResult& r, double elongation_limit_deg);
+
+// DIR/search, created if need be: InputError if it is a symbolic link or not a folder.
+std::string search_folder(const std::string& exercise_dir);
 
 // The caution printed with every plan of pointings.
 extern const char* const search_caution;

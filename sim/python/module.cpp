@@ -340,11 +340,16 @@ PYBIND11_MODULE(wayward, m) {
             if (!strategy.empty()) a.strategy = strategy;
             py::dict d;
             d["text"] = printed([&](std::ostream& o) { run_search(a, o); });
-            d["nights"] = csv_table(dir + "/search/nights.csv");
+            // A record brought in with `import` has no rehearsal: its fields are listed instead.
+            if (load_brief(exercise_paths(dir).brief()).imported())
+                d["fields"] = csv_table(dir + "/search/fields.csv");
+            else
+                d["nights"] = csv_table(dir + "/search/nights.csv");
             return d;
         },
         py::arg("dir"), py::arg("nights") = 30, py::arg("seed") = 1, py::arg("strategy") = "",
-        "Rehearses the telescope search night by night (as `wayward search`); returns the text and the nights' table.");
+        "Rehearses the telescope search night by night (as `wayward search`); returns the text and the nights' table "
+        "(for a folder imported from a record, which has no truth to rehearse against, the table of fields to point at).");
 
     m.def(
         "campaign",
