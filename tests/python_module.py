@@ -117,6 +117,18 @@ with tempfile.TemporaryDirectory() as work:
         check(False, "a declination of 95 deg raises")
     except wayward.InputError as e:
         check(e.file.endswith("positions.csv") and e.line == 2 and e.field == "dec", f"a bad record names file, line, field: {e}")
+    # An imported record has no truth to rehearse against: search returns the fields' table, as the command writes it.
+    rec2, imp = os.path.join(work, "rec2"), os.path.join(work, "imp")
+    wayward.new_exercise(quick, os.path.join(work, "c2"), seed=4, record=rec2)
+    wayward.import_record(rec2, imp)
+    assert cli("solve", imp, "--quiet").returncode == 0
+    r = cli("search", imp)
+    assert r.returncode == 0, r.stderr
+    with open(os.path.join(imp, "search", "fields.csv")) as fh:
+        want = [float(row.split(",")[2]) for row in fh.read().splitlines()[1:]]
+    fl = wayward.search(imp)
+    check("nights" not in fl and list(fl["fields"]["ra_deg"]) == want and len(want) >= 1 and fl["text"] == r.stdout,
+          f"search on an imported record returns its {len(want)} fields, as `wayward search` lists them")
     try:
         wayward.solve(b, samples=3)
         check(False, "a bad option raises")
