@@ -48,6 +48,7 @@ TEST_CASE("the field list: most probable first, shares counted once, and the 50/
         sum += f.added;
         CHECK(f.cumulative == doctest::Approx(sum).epsilon(1e-12));
         CHECK(f.added <= f.probability + 1e-12);  // overlaps are not counted twice
+        CHECK(f.added > 0.0);                     // and a field adding nothing is not listed
         if (k > 0) CHECK(f.probability <= plan.fields[k - 1].probability);
         CHECK(std::abs(f.elongation / deg - 90.0) < 6.0);
     }

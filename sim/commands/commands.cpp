@@ -197,6 +197,7 @@ int run_residuals(const ResidualsArgs& args, std::ostream& out, std::ostream& pr
 #include "sim/base/progress.hpp"
 #include "sim/predict/near_star.hpp"
 #include "sim/score/score.hpp"
+#include "sim/solve/mixture.hpp"
 #include "sim/score/stated_prediction.hpp"
 #include "sim/io/toml_reader.hpp"
 
@@ -324,19 +325,26 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
     out << "  1-sigma ellipse (linear): " << p.semi_major_arcsec / 60 << " x " << p.semi_minor_arcsec / 60
         << " arcmin, major axis at position angle " << std::setprecision(1) << position_angle_deg(p.orientation_deg) << std::setprecision(3)
         << " deg (from north, +β, through east, +λ)\n";
-    out << "  1-sigma ellipse (" << p.samples_used << " samples): " << p.sampled_semi_major_arcsec / 60 << " x "
+    const MixedShare mixed = mixed_share(p);
+    const int own = p.samples_used - mixed.bodies;  // the best minimum's own samples (the others' follow them)
+    out << "  1-sigma ellipse (" << own << " samples): " << p.sampled_semi_major_arcsec / 60 << " x "
         << p.sampled_semi_minor_arcsec / 60 << " arcmin; 90% of samples within " << p.radius90_arcsec / 60 << " arcmin\n";
-    if (std::isfinite(p.effective_samples)) {
+    if (std::isfinite(p.effective_samples) && p.samples_in_full >= own) {
         out << "  (the model is not linear over the region: the samples were drawn in the hidden body's parameters, the planets'\n"
             << "  corrections solved for each, and weighted by their exact chi2; effective sample size " << std::setprecision(1)
             << p.effective_samples << std::setprecision(3) << " of " << p.samples_used << ")\n";
         if (p.effective_samples < 29.95)  // as printed: equal weights give n up to rounding, and 30.0 is not "under 30"
             out << "  Caution: so few effective samples cannot map the region; its shape and size are poorly known.\n";
     }
-    if (p.samples_in_full < p.samples_used)
+    if (p.samples_in_full < own)
         out << "  (" << p.samples_in_full << " samples run through the model lay within " << std::setprecision(1)
             << 100.0 * p.pilot_departure << std::setprecision(3) << "% of the minor axis of their linear propagation; the other "
-            << p.samples_used - p.samples_in_full << " were propagated linearly)\n";
+            << own - p.samples_in_full << " were propagated linearly)\n";
+    if (mixed.minima > 0)
+        out << "  the probability map also holds " << mixed.minima << " other minim" << (mixed.minima == 1 ? "um" : "a") << " ("
+            << std::setprecision(1) << 100.0 * mixed.probability << std::setprecision(3) << "% of the probability; " << mixed.bodies
+            << " virtual bodies drawn from " << (mixed.minima == 1 ? "its own ellipse" : "their own ellipses")
+            << "):\n  the region may be several islands\n";
     out << "  search field radius: " << ex.brief.field_radius_deg * 60 << " arcmin\n";
     out << std::defaultfloat;
     out << icrs_pointing_text(ex.brief, p);
@@ -447,7 +455,7 @@ int run_score(const ScoreArgs& args, std::ostream& out, Score* scored) {
     }
     if (sc.map_truth_rank)
         out << (own || !args.prediction_file.empty() ? "By the stated samples' map: rank of the truth "
-                                                      : "By the solve's virtual bodies (the map is not linear): rank of the truth ") << std::setprecision(1) << 100.0 * *sc.map_truth_rank
+                                                      : "By the solve's virtual bodies (" + std::string(why_samples_describe_region(p)) + "): rank of the truth ") << std::setprecision(1) << 100.0 * *sc.map_truth_rank
             << "%, the field covered " << 100.0 * *sc.map_field_probability << "%\n" << std::setprecision(3);
     out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
         << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "

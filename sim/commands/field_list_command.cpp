@@ -61,7 +61,7 @@ std::string fields_summary(const FieldPlan& plan, const SearchRegion& region, co
     o << "Predicted centre (ICRS, astrometric): RA " << sexagesimal_ra(c.ra_deg) << ", Dec " << sexagesimal_dec(c.dec_deg) << "\n";
     if (region.from_virtual_bodies)
         o << "Region: the solve's " << region.virtual_bodies << " virtual bodies (effective " << fmt("%.1f", region.effective_samples)
-          << "; the map is not linear), 98.9 % within " << fmt("%.2f", region.reach / deg) << " deg\n";
+          << "; " << region.why_virtual_bodies << "), 98.9 % within " << fmt("%.2f", region.reach / deg) << " deg\n";
     else
         o << "Region: 1-sigma ellipse " << fmt("%.3f", region.sigma_major / deg) << " x " << fmt("%.3f", region.sigma_minor / deg) << " deg\n";
     o << "Field: " << fmt("%.2f", tel.field_of_view_deg) << " deg " << (tel.shape == FieldShape::square ? "square" : "circle (diameter)")

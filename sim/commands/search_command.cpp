@@ -126,7 +126,7 @@ std::string summary_text(const RehearsalResult& r, const Brief& b, const Telesco
       << fmt("%.0f", 100.0 * tel.clear_fraction) << " %\n";
     if (r.region.from_virtual_bodies)
         o << "Region: the solve's " << r.region.virtual_bodies << " virtual bodies (effective " << fmt("%.1f", r.region.effective_samples)
-          << "; the map is not linear), 98.9 % within " << fmt("%.2f", r.region.reach / deg) << " deg; " << r.fields.size() << " field"
+          << "; " << r.region.why_virtual_bodies << "), 98.9 % within " << fmt("%.2f", r.region.reach / deg) << " deg; " << r.fields.size() << " field"
           << (r.fields.size() == 1 ? "" : "s") << " tiled\n";
     else
         o << "Region: 1-sigma ellipse " << fmt("%.3f", r.region.sigma_major / deg) << " x " << fmt("%.3f", r.region.sigma_minor / deg)

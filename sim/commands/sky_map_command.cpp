@@ -43,6 +43,7 @@ void write_sky_map(const std::string& dir, const Brief& brief, const std::string
     std::vector<SkySample> samples = equal_weight_samples(lon, lat);
     if (p.sample_weight.size() == samples.size())
         for (std::size_t i = 0; i < samples.size(); ++i) samples[i].weight = p.sample_weight[i];  // importance weights
+    for (std::size_t i = 0; i < samples.size(); ++i) samples[i].group = group_of_sample(p, i);  // each minimum its own kernel
     const SkyMap map = make_sky_map(samples, nside);
     const std::vector<RankedPixel> ranked = ranked_pixels(map);
     const std::vector<SkyRegion> regions = sky_regions(map, ranked, {0.5, 0.9, 0.99});

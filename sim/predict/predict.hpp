@@ -88,15 +88,29 @@ struct Prediction {
     // solution.toml keeps them, so search, score and the viewer use the same map as the solve.
     std::vector<double> sample_lon, sample_lat, sample_weight;
     double effective_samples = NAN;  // (sum w)^2 / sum w^2 of the importance weights; NaN when all are equal
+    // Where the solve mixes other minima into the map (solve/mixture.hpp): each sample's minimum, 0 for the best's
+    // own (first) and i for the i-th other minimum's, which follow; empty when the samples are the best's alone.
+    // The sky map smooths each group at its own scale (SkySample::group).
+    std::vector<int> sample_group;
     std::vector<TrackPoint> track;
 };
 
 // Whether the samples, not the ellipse, describe the region: every sample was run through the model because the
-// pilot showed the map is not linear (where it is, the samples are the ellipse's Gaussian propagated linearly).
+// pilot showed the map is not linear (where it is, the samples are the ellipse's Gaussian propagated linearly),
+// or other minima's virtual bodies are mixed in (the region may then be several islands).
 inline bool samples_describe_region(const Prediction& p) {
-    return p.samples_used > 0 && p.samples_in_full >= p.samples_used && p.sample_lon.size() == static_cast<std::size_t>(p.samples_used) &&
+    return p.samples_used > 0 && (p.samples_in_full >= p.samples_used || !p.sample_group.empty()) &&
+           p.sample_lon.size() == static_cast<std::size_t>(p.samples_used) &&
            p.sample_lat.size() == p.sample_lon.size() && p.sample_weight.size() == p.sample_lon.size();
 }
+
+// Why the samples describe the region, in words: "the map is not linear" or "other minima mixed in".
+inline const char* why_samples_describe_region(const Prediction& p) {
+    return p.sample_group.empty() ? "the map is not linear" : "other minima mixed in";
+}
+
+// Sample k's group (Prediction::sample_group; 0 when the samples are the best minimum's alone).
+inline int group_of_sample(const Prediction& p, std::size_t k) { return k < p.sample_group.size() ? p.sample_group[k] : 0; }
 
 struct PredictOptions {
     double track_years = 60.0;      // track +- this around each epoch (cut at the span's ends)

@@ -110,37 +110,66 @@ std::pair<double, double> checked_weights(const std::vector<SkySample>& samples)
     return {total, total_sq};
 }
 
+// Each group's kernel (make_kernel over its own samples), and which kernel every sample uses. Groups with no
+// weight get none (their samples weigh nothing anywhere). With a single group this is make_kernel over all the
+// samples, exactly.
+std::vector<Kernel> group_kernels(const std::vector<SkySample>& samples, double pixel_rad, std::vector<std::size_t>& kernel_of) {
+    std::vector<int> groups;
+    for (const SkySample& x : samples)
+        if (std::find(groups.begin(), groups.end(), x.group) == groups.end()) groups.push_back(x.group);
+    std::vector<Kernel> kernels;
+    kernel_of.assign(samples.size(), 0);
+    for (int g : groups) {
+        std::vector<SkySample> own;
+        double total = 0.0, total_sq = 0.0;
+        for (const SkySample& x : samples)
+            if (x.group == g) {
+                own.push_back(x);
+                total += x.weight;
+                total_sq += x.weight * x.weight;
+            }
+        if (!(total > 0.0)) continue;
+        for (std::size_t k = 0; k < samples.size(); ++k)
+            if (samples[k].group == g) kernel_of[k] = kernels.size();
+        kernels.push_back(make_kernel(own, total, total * total / total_sq, pixel_rad));
+    }
+    return kernels;
+}
+
 }  // namespace
 
 SampleDensity::SampleDensity(const std::vector<SkySample>& samples) : samples_(samples) {
     const auto [total, total_sq] = checked_weights(samples);
     total_ = total;
     n_eff_ = total * total / total_sq;
-    const Kernel k = make_kernel(samples, total, n_eff_, 0.0);
-    lon0_ = k.lon0;
-    lat0_ = k.lat0;
-    shrink_ = k.shrink;
-    mean_x_ = k.mean.x();
-    mean_y_ = k.mean.y();
-    // The kernel's square root by its eigen-decomposition (a degenerate kernel, all samples on a line, draws
-    // fine); its inverse with a floor of a milliarcsecond squared so that the density stays finite.
-    Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> es(k.covariance);
-    const Eigen::Vector2d ev = es.eigenvalues().cwiseMax(0.0);
-    const Eigen::Matrix2d root = es.eigenvectors() * ev.cwiseSqrt().asDiagonal();
-    const Eigen::Vector2d floored = ev.cwiseMax((1e-3 * arcsec) * (1e-3 * arcsec));
-    const Eigen::Matrix2d inverse = es.eigenvectors() * floored.cwiseInverse().asDiagonal() * es.eigenvectors().transpose();
-    for (int i = 0; i < 2; ++i)
-        for (int j = 0; j < 2; ++j) root_[i][j] = root(i, j), inverse_[i][j] = inverse(i, j);
-    norm_ = 1.0 / (2.0 * pi * std::sqrt(floored.x() * floored.y()));
+    for (const Kernel& k : group_kernels(samples, 0.0, kernel_of_)) {
+        GroupKernel g;
+        g.lon0 = k.lon0;
+        g.lat0 = k.lat0;
+        g.shrink = k.shrink;
+        g.mean_x = k.mean.x();
+        g.mean_y = k.mean.y();
+        // The kernel's square root by its eigen-decomposition (a degenerate kernel, all samples on a line, draws
+        // fine); its inverse with a floor of a milliarcsecond squared so that the density stays finite.
+        Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> es(k.covariance);
+        const Eigen::Vector2d ev = es.eigenvalues().cwiseMax(0.0);
+        const Eigen::Matrix2d root = es.eigenvectors() * ev.cwiseSqrt().asDiagonal();
+        const Eigen::Vector2d floored = ev.cwiseMax((1e-3 * arcsec) * (1e-3 * arcsec));
+        const Eigen::Matrix2d inverse = es.eigenvectors() * floored.cwiseInverse().asDiagonal() * es.eigenvectors().transpose();
+        for (int i = 0; i < 2; ++i)
+            for (int j = 0; j < 2; ++j) g.root[i][j] = root(i, j), g.inverse[i][j] = inverse(i, j);
+        g.norm = 1.0 / (2.0 * pi * std::sqrt(floored.x() * floored.y()));
+        kernels_.push_back(g);
+    }
     cumulative_.resize(samples.size());
     double acc = 0.0;
     for (std::size_t j = 0; j < samples.size(); ++j) cumulative_[j] = acc += samples[j].weight;
 }
 
-void SampleDensity::centre(const SkySample& x, double& cx, double& cy) const {
-    const Eigen::Vector2d d = tangent_offset(x.lon, x.lat, lon0_, lat0_);
-    cx = shrink_ * d.x() + (1.0 - shrink_) * mean_x_;
-    cy = shrink_ * d.y() + (1.0 - shrink_) * mean_y_;
+void SampleDensity::centre(const GroupKernel& k, const SkySample& x, double& cx, double& cy) const {
+    const Eigen::Vector2d d = tangent_offset(x.lon, x.lat, k.lon0, k.lat0);
+    cx = k.shrink * d.x() + (1.0 - k.shrink) * k.mean_x;
+    cy = k.shrink * d.y() + (1.0 - k.shrink) * k.mean_y;
 }
 
 std::vector<SkySample> SampleDensity::draw(int count, Rng& rng) const {
@@ -149,29 +178,38 @@ std::vector<SkySample> SampleDensity::draw(int count, Rng& rng) const {
     for (int n = 0; n < count; ++n) {
         const double u = uniform01(rng) * cumulative_.back();
         const auto it = std::upper_bound(cumulative_.begin(), cumulative_.end(), u);
-        const SkySample& x = samples_[std::min<std::size_t>(static_cast<std::size_t>(it - cumulative_.begin()), samples_.size() - 1)];
+        const std::size_t j = std::min<std::size_t>(static_cast<std::size_t>(it - cumulative_.begin()), samples_.size() - 1);
+        const SkySample& x = samples_[j];
+        const GroupKernel& k = kernels_[kernel_of_[j]];
         const double z1 = normal(rng), z2 = normal(rng);
         double cx = 0.0, cy = 0.0;
-        centre(x, cx, cy);
-        cx += root_[0][0] * z1 + root_[0][1] * z2;
-        cy += root_[1][0] * z1 + root_[1][1] * z2;
-        out.push_back({wrap_two_pi(lon0_ + cx / std::cos(lat0_)), std::clamp(lat0_ + cy, -pi / 2, pi / 2), 1.0});
+        centre(k, x, cx, cy);
+        cx += k.root[0][0] * z1 + k.root[0][1] * z2;
+        cy += k.root[1][0] * z1 + k.root[1][1] * z2;
+        out.push_back({wrap_two_pi(k.lon0 + cx / std::cos(k.lat0)), std::clamp(k.lat0 + cy, -pi / 2, pi / 2), 1.0, x.group});
     }
     return out;
 }
 
 double SampleDensity::at(double lon, double lat) const {
-    const Eigen::Vector2d p = tangent_offset(lon, lat, lon0_, lat0_);
-    double sum = 0.0;
-    for (const SkySample& x : samples_) {
+    // Each group's kernels in its own tangent plane (an island far from the others is measured where it lies).
+    std::vector<Eigen::Vector2d> p;
+    std::vector<double> sum(kernels_.size(), 0.0);
+    for (const GroupKernel& k : kernels_) p.push_back(tangent_offset(lon, lat, k.lon0, k.lat0));
+    for (std::size_t j = 0; j < samples_.size(); ++j) {
+        const SkySample& x = samples_[j];
         if (x.weight == 0.0) continue;
+        const std::size_t g = kernel_of_[j];
+        const GroupKernel& k = kernels_[g];
         double cx = 0.0, cy = 0.0;
-        centre(x, cx, cy);
-        const double dx = p.x() - cx, dy = p.y() - cy;
-        const double q = inverse_[0][0] * dx * dx + 2.0 * inverse_[0][1] * dx * dy + inverse_[1][1] * dy * dy;
-        sum += x.weight * std::exp(-0.5 * q);
+        centre(k, x, cx, cy);
+        const double dx = p[g].x() - cx, dy = p[g].y() - cy;
+        const double q = k.inverse[0][0] * dx * dx + 2.0 * k.inverse[0][1] * dx * dy + k.inverse[1][1] * dy * dy;
+        sum[g] += x.weight * std::exp(-0.5 * q);
     }
-    return norm_ * sum / total_;
+    double density = 0.0;
+    for (std::size_t g = 0; g < kernels_.size(); ++g) density += kernels_[g].norm * sum[g];
+    return density / total_;
 }
 
 double SampleDensity::rank_of(double lon, double lat, int count, Rng& rng) const {
@@ -207,18 +245,29 @@ SkyMap make_sky_map(const std::vector<SkySample>& samples, int nside) {
     map.pixel_area_deg2 = full_sky_deg2 / static_cast<double>(base.Npix());
     map.effective_samples = total * total / total_sq;
     const double pixel_rad = sky_map_pixel_arcmin(nside) / 60.0 * deg;
-    const Kernel kernel = make_kernel(samples, total, map.effective_samples, pixel_rad);
-    const Eigen::Matrix2d h_inv = kernel.covariance.inverse();
-    Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> es(kernel.covariance);
-    map.kernel_major_arcsec = std::sqrt(es.eigenvalues()[1]) / arcsec;
-    map.kernel_minor_arcsec = std::sqrt(es.eigenvalues()[0]) / arcsec;
-    // Four kernel sigmas hold all but 3e-4 of a two-dimensional Gaussian; the rest is renormalised away below.
-    const double reach = std::min(pi, 4.0 * std::sqrt(es.eigenvalues()[1]));
+    std::vector<std::size_t> kernel_of;
+    const std::vector<Kernel> kernels = group_kernels(samples, pixel_rad, kernel_of);
+    std::vector<Eigen::Matrix2d> h_inv;
+    std::vector<double> reaches;
+    for (const Kernel& kernel : kernels) {
+        h_inv.push_back(kernel.covariance.inverse());
+        Eigen::SelfAdjointEigenSolver<Eigen::Matrix2d> es(kernel.covariance);
+        if (h_inv.size() == 1) {  // the first group's: the best minimum's where a solve mixes several
+            map.kernel_major_arcsec = std::sqrt(es.eigenvalues()[1]) / arcsec;
+            map.kernel_minor_arcsec = std::sqrt(es.eigenvalues()[0]) / arcsec;
+        }
+        // Four kernel sigmas hold all but 3e-4 of a two-dimensional Gaussian; the rest is renormalised away below.
+        reaches.push_back(std::min(pi, 4.0 * std::sqrt(es.eigenvalues()[1])));
+    }
 
     rangeset<int64> near;
     std::vector<std::pair<int64, double>> touched;
-    for (const SkySample& x : samples) {
+    for (std::size_t j = 0; j < samples.size(); ++j) {
+        const SkySample& x = samples[j];
         if (x.weight == 0.0) continue;
+        const Kernel& kernel = kernels[kernel_of[j]];
+        const double reach = reaches[kernel_of[j]];
+        const Eigen::Matrix2d& h = h_inv[kernel_of[j]];
         double lon = 0.0, lat = 0.0;
         kernel_centre(kernel, x, lon, lat);
         base.query_disc_inclusive(to_pointing(lon, lat), reach, near);
@@ -228,7 +277,7 @@ SkyMap make_sky_map(const std::vector<SkySample>& samples, int nside) {
             for (int64 pix = near.ivbegin(r); pix < near.ivend(r); ++pix) {
                 const pointing c = base.pix2ang(pix);
                 const Eigen::Vector2d d = tangent_offset(c.phi, pi / 2 - c.theta, lon, lat);
-                const double k = std::exp(-0.5 * d.dot(h_inv * d));
+                const double k = std::exp(-0.5 * d.dot(h * d));
                 if (k <= 0.0) continue;
                 touched.emplace_back(pix, k);
                 sum += k;

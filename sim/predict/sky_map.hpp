@@ -4,7 +4,8 @@
 //
 // Method: a Gaussian kernel density estimate. Each sample is spread over the pixels near it with the kernel
 // covariance H = n_eff^(-1/3) S (Scott's rule for two dimensions; Scott 1992, Multivariate Density Estimation,
-// ch. 6), S the samples' weighted covariance in the tangent plane at their mean direction, H's axes held at least
+// ch. 6), S the weighted covariance of the sample's group (SkySample::group; one group unless a solve mixes
+// several minima) in the tangent plane at the group's mean direction, H's axes held at least
 // half a pixel wide; the kernels' centres are shrunk towards the mean (Liu & West 2001) so the map keeps the
 // samples' covariance, and each sample's kernel is normalised over the pixels it reaches so it contributes exactly
 // its weight. The tangent plane suits regions up to some tens of degrees away from the poles of the frame. Pixelisation is
@@ -22,6 +23,9 @@ namespace wayward {
 struct SkySample {
     double lon = 0.0, lat = 0.0;  // radians, in the exercise's frame (λ, β)
     double weight = 1.0;          // any non-negative scale; normalised here
+    // Samples of one group share one kernel (their own tangent point, covariance and Scott's-rule width): each
+    // distinct minimum of a solve is a group, so islands far apart are each smoothed at their own scale.
+    int group = 0;
 };
 
 // The sample directions of a prediction, equally weighted.
@@ -68,15 +72,20 @@ public:
     double effective_samples() const { return n_eff_; }
 
 private:
+    struct GroupKernel {                        // one group's kernel (SkySample::group)
+        double lon0 = 0.0, lat0 = 0.0, shrink = 1.0;  // its tangent point and the centres' shrink
+        double mean_x = 0.0, mean_y = 0.0;
+        double root[2][2] = {{0, 0}, {0, 0}};     // the kernel covariance's square root
+        double inverse[2][2] = {{0, 0}, {0, 0}};  // and its inverse
+        double norm = 0.0;                        // 1 / (2 pi sqrt(det))
+    };
     std::vector<SkySample> samples_;
+    std::vector<GroupKernel> kernels_;
+    std::vector<std::size_t> kernel_of_;  // per sample, into kernels_
     double total_ = 0.0, n_eff_ = 0.0;
-    double lon0_ = 0.0, lat0_ = 0.0, shrink_ = 1.0;
-    double mean_x_ = 0.0, mean_y_ = 0.0;
-    double root_[2][2] = {{0, 0}, {0, 0}};  // the kernel covariance's square root
-    double inverse_[2][2] = {{0, 0}, {0, 0}};  // and its inverse
-    double norm_ = 0.0;                     // 1 / (2 pi sqrt(det))
     std::vector<double> cumulative_;
-    void centre(const SkySample& x, double& cx, double& cy) const;  // a sample's kernel centre, tangent offsets
+    // A sample's kernel centre, as offsets in its group's tangent plane.
+    void centre(const GroupKernel& k, const SkySample& x, double& cx, double& cy) const;
 };
 
 // SampleDensity(samples).draw(count, rng).

@@ -183,11 +183,13 @@ void search_table(std::ostringstream& t, const CampaignManifest& m, const Groups
     }
 }
 
-// The virtual bodies' map, where a case's map was not linear: how often the truth lies in its 50 % and 90 %
+// The map of samples, where a case has one (the solve's virtual bodies where its map was not linear, or a team's
+// stated samples): how often the truth lies in its 50 % and 90 %
 // highest-density regions (a calibrated map: 50 % and 90 %), with 95 % Wilson intervals.
 void map_table(std::ostringstream& t, const CampaignManifest& m, const Groups& g) {
-    t << "\nThe virtual bodies' map (cases whose map is not linear, so the solve weighted its samples): the truth inside\n"
-         "its 50% and 90% highest-probability regions, with 95% Wilson intervals; a calibrated map gives 50% and 90%.\n\n";
+    t << "\nThe map of samples (cases whose region is a map: the solve's weighted virtual bodies where its map is not linear,\n"
+         "or a team's stated samples): the truth inside its 50% and 90% highest-probability regions, with 95% Wilson\n"
+         "intervals; a calibrated map gives 50% and 90%.\n\n";
     std::size_t first = 10;
     for (const std::string& n : g.settings) first = std::max(first, n.size() + 2);
     const std::vector<std::pair<std::string, std::size_t>> cols = {{"settings", first}, {m.epochs_are_offsets ? "epoch (±yr)" : "epoch", 12},

@@ -63,7 +63,7 @@ Score score_prediction(const Brief& brief, const TruthEphemeris& truth_eph, cons
     }
     if (samples_describe_region(p)) {
         std::vector<SkySample> bodies;
-        for (std::size_t k = 0; k < p.sample_lon.size(); ++k) bodies.push_back({p.sample_lon[k], p.sample_lat[k], p.sample_weight[k]});
+        for (std::size_t k = 0; k < p.sample_lon.size(); ++k) bodies.push_back({p.sample_lon[k], p.sample_lat[k], p.sample_weight[k], group_of_sample(p, k)});
         const SampleDensity map(bodies);
         Rng rng = make_rng(1, "score map");  // a fixed stream: the score of a solution is the same every time
         s.map_truth_rank = map.rank_of(s.true_lon, s.true_lat, 4000, rng);

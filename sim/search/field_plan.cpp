@@ -46,7 +46,7 @@ FieldPlan plan_fields(const SearchRegion& r, const Telescope& tel, const std::ve
                 added += s.weight / total;
             }
         }
-        if (kept) continue;
+        if (kept || added <= 0.0) continue;  // a field wholly inside those listed before adds nothing
         cumulative += added;
         plan.fields.push_back({static_cast<int>(plan.fields.size()) + 1, f.id, lon, lat, prob[i], added, cumulative, elongation});
     }

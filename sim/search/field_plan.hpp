@@ -34,7 +34,7 @@ struct FieldPlan {
 };
 
 // The fields of `tiling` at `year` (t_days from the exercise's epoch for the observer's path), listed until they
-// hold `stop_at` of the region or the tiling runs out.
+// hold `stop_at` of the region or the tiling runs out; a field that would add nothing to those before it is left out.
 FieldPlan plan_fields(const SearchRegion& r, const Telescope& tel, const std::vector<Field>& tiling, const ObserverPath& path,
                       double elongation_limit, double year, double t_days, double stop_at = 0.99);
 

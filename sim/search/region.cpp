@@ -44,11 +44,12 @@ SearchRegion region_from_solution(const Solution& s, int count, std::uint64_t se
         std::vector<SkySample> bodies;
         double total = 0.0, total_sq = 0.0;
         for (std::size_t k = 0; k < p.sample_lon.size(); ++k) {
-            bodies.push_back({p.sample_lon[k], p.sample_lat[k], p.sample_weight[k]});
+            bodies.push_back({p.sample_lon[k], p.sample_lat[k], p.sample_weight[k], group_of_sample(p, k)});
             total += p.sample_weight[k];
             total_sq += p.sample_weight[k] * p.sample_weight[k];
         }
         r.from_virtual_bodies = true;
+        r.why_virtual_bodies = why_samples_describe_region(p);
         r.virtual_bodies = static_cast<int>(bodies.size());
         r.effective_samples = total_sq > 0.0 ? total * total / total_sq : 0.0;
         std::vector<double> radii;

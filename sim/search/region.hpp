@@ -33,6 +33,7 @@ struct SearchRegion {
     std::vector<TrackPoint> track;        // predicted track, for the centre at other dates
     std::vector<RegionSample> samples;
     bool from_virtual_bodies = false;     // the samples come from the solve's virtual bodies, not the ellipse
+    const char* why_virtual_bodies = "";  // why_samples_describe_region, when from_virtual_bodies
     int virtual_bodies = 0;               // how many, when from_virtual_bodies
     double effective_samples = 0.0;       // of those virtual bodies' weights, when from_virtual_bodies
     double reach = 0.0;                   // radius (radians) holding 98.9 % of the samples, when from_virtual_bodies

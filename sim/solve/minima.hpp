@@ -11,6 +11,8 @@
 // the known planets' orbits could not have survived it.
 #pragma once
 
+#include <cmath>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -18,8 +20,23 @@
 
 #include "sim/exercise/exercise.hpp"
 #include "sim/model/model.hpp"
+#include "sim/predict/predict.hpp"
 
 namespace wayward {
+
+// One distinct local minimum of the solve (best first in Solution::minima).
+struct Minimum {
+    HiddenOrbit orbit;
+    double chi2 = 0.0;
+    bool converged = false;
+    int iterations = 0;
+    double start_distance_au = 0.0, start_longitude = 0.0;
+    Eigen::VectorXd parameters;     // the whole parameter vector (planets' corrections included); in memory only
+    double probability = NAN;       // relative probability among the minima (Laplace approximation, below)
+    std::vector<std::string> flags; // physical implausibilities (implausibility_flags), empty when none
+    Eigen::MatrixXd covariance;     // its own (Laplace) covariance; in memory only
+    std::optional<Prediction> prediction;  // where it puts the body at the solve's epoch (not for the best: see Solution)
+};
 
 inline constexpr double deuterium_burning_limit_solar = 0.0124;  // 13 Jupiter masses
 inline constexpr double hydrogen_burning_limit_solar = 0.075;

@@ -82,6 +82,11 @@ std::string solution_toml(const Solution& s) {
         pt.insert("sample_lon_deg", sl);
         pt.insert("sample_lat_deg", sb);
         pt.insert("sample_weight", sw);
+        if (p.sample_group.size() == p.sample_lon.size()) {  // other minima mixed in (solve/mixture.hpp)
+            toml::array sg;
+            for (int g : p.sample_group) sg.push_back(static_cast<int64_t>(g));
+            pt.insert("sample_minimum", sg);
+        }
     }
     if (std::isfinite(p.effective_samples)) pt.insert("effective_samples", p.effective_samples);
     root.insert("prediction", pt);
@@ -138,6 +143,17 @@ void read_virtual_bodies(detail::TableReader& r, Prediction& p, bool stated) {
         p.sample_lon.push_back(wrap_two_pi(ls[k] * deg));
         p.sample_lat.push_back(bs[k] * deg);
         p.sample_weight.push_back(stated ? ws[k] / total : ws[k]);
+    }
+    if (!stated && r.has("sample_minimum")) {
+        // Which minimum each virtual body belongs to (0: the best, i: the solution's (i+1)-th minimum); whole numbers.
+        const auto gs = r.numbers("sample_minimum").value_or(std::vector<double>{});
+        if (gs.size() != ls.size()) r.fail("sample_minimum", "holds " + std::to_string(gs.size()) + " entries for " + std::to_string(ls.size()) + " samples");
+        for (std::size_t k = 0; k < gs.size(); ++k) {
+            if (!(gs[k] >= 0.0 && gs[k] <= 1000.0 && gs[k] == std::floor(gs[k])))
+                r.fail("sample_minimum", "entry " + std::to_string(k + 1) + " must be a whole number in [0, 1000]");
+            p.sample_group.push_back(static_cast<int>(gs[k]));
+        }
+        if (!gs.empty() && gs.front() != 0.0) r.fail("sample_minimum", "the best minimum's own samples come first");
     }
     if (stated && !ls.empty()) {
         // A stated set of samples is the region itself (samples_describe_region), as a solve's are where its map

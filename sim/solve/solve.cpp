@@ -12,6 +12,7 @@
 #include "sim/base/random.hpp"
 #include "sim/base/units.hpp"
 #include "sim/solve/minima.hpp"
+#include "sim/solve/mixture.hpp"
 
 namespace wayward {
 
@@ -570,6 +571,8 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
             // A minimum whose orbit cannot be integrated to the epoch has no prediction; the table says so.
         }
     }
+    // The map over every plausible minimum: the other minima's virtual bodies join the best's (mixture.hpp).
+    mix_other_minima(sol.prediction, sol.minima, o.seed);
     sol.setup = std::shared_ptr<const ModelSetup>(known, &known->setup);
     sol.model_runs = runs.load();
     report("done", 1.0);

@@ -25,22 +25,10 @@
 #include "sim/io/toml_reader.hpp"
 #include "sim/predict/predict.hpp"
 #include "sim/solve/detection.hpp"
+#include "sim/solve/minima.hpp"
 #include "sim/solve/solve_options.hpp"
 
 namespace wayward {
-
-struct Minimum {
-    HiddenOrbit orbit;
-    double chi2 = 0.0;
-    bool converged = false;
-    int iterations = 0;
-    double start_distance_au = 0.0, start_longitude = 0.0;
-    Eigen::VectorXd parameters;     // the whole parameter vector (planets' corrections included); in memory only
-    double probability = NAN;       // relative probability among the minima (Laplace approximation, minima.hpp)
-    std::vector<std::string> flags; // physical implausibilities (minima.hpp), empty when none
-    Eigen::MatrixXd covariance;     // its own (Laplace) covariance; in memory only
-    std::optional<Prediction> prediction;  // where it puts the body at the solve's epoch (not for the best: see Solution)
-};
 
 struct Solution {
     std::string exercise_sha256;    // the brief's identity (answer-key or record digest): ties the solution to its exercise
