@@ -12,6 +12,7 @@
 #include <cmath>
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -21,6 +22,8 @@
 #include "sim/model/model.hpp"
 
 namespace wayward {
+
+class RegionDensity;  // region_density.hpp
 
 // The solve's parameter vector: the observed planets' scaled states (6 each, see pack_planets), then the hidden
 // body's parameters, of which some may be absent (a fixed distance, a circular or coplanar orbit).
@@ -89,6 +92,10 @@ struct Prediction {
     std::vector<double> sample_lon, sample_lat, sample_weight;
     double effective_samples = NAN;  // (sum w)^2 / sum w^2 of the importance weights; NaN when all are equal
     std::vector<TrackPoint> track;
+    // A stated prediction's region given as a HEALPix map (a team's own, never the solver's): scored in place of
+    // samples; the file it came from, for what score prints. Shared, as copies of a prediction read the same map.
+    std::shared_ptr<const RegionDensity> stated_map;
+    std::string stated_map_file;
 };
 
 // Whether the samples, not the ellipse, describe the region: every sample was run through the model because the
