@@ -53,34 +53,39 @@ struct MapCell {
 // The largest order a map's cell may have: the NUNIQ scheme's own limit (nside 2^29).
 inline constexpr int max_map_cell_order = 29;
 
-// A HEALPix probability map as a region. The cells must not overlap (a flat map: every pixel of one order; a
-// multi-order map: its NUNIQ cells); cells holding nothing may be left out. The probabilities are normalised here.
-// `fitting_to_map` turns a unit vector of the fitting frame into the map's frame (identity for an invented
-// exercise's own frame; the transpose of icrs_to_fitting_frame for a map in ICRS), so the map is read in its own
-// pixels and only the directions asked about are rotated: no resampling. Throws std::invalid_argument for an
-// order outside [0, 29], a pixel outside its order, a negative or non-finite probability or none at all.
+// A HEALPix probability map as a region. The probabilities are normalised here. `fitting_to_map` turns a unit
+// vector of the fitting frame into the map's frame (identity for an invented exercise's own frame; the transpose of
+// icrs_to_fitting_frame for a map in ICRS), so the map is read in its own pixels and only the directions asked
+// about are rotated: no resampling. Both constructors throw std::invalid_argument for an order outside [0, 29], a
+// pixel outside its order, a negative or non-finite probability or none at all.
 class PixelMapRegion final : public RegionDensity {
 public:
+    // A multi-order map: cells that do not overlap (its NUNIQ cells); cells holding nothing may be left out.
     PixelMapRegion(std::vector<MapCell> cells, const Eigen::Matrix3d& fitting_to_map);
+    // A flat map: one probability per NESTED pixel of one order, kept as it is (no index per pixel: a whole-sky
+    // map at nside 1024 stays 100 MB).
+    PixelMapRegion(int order, std::vector<double> nested_probability, const Eigen::Matrix3d& fitting_to_map);
     // Density compared per steradian, so cells of different orders rank fairly; at one order that is the
-    // probability per pixel. A direction in no cell has density 0.
+    // probability per pixel. A direction in no cell has density 0. One pass over the cells: score asks once.
     double rank_of(double lon, double lat, Rng& rng) const override;
     // The probability of the cells whose centres lie within `radius` (libhealpix-cxx's query_disc, which returns
     // exactly the pixels whose centres are inside the disc).
     double mass_within(double lon, double lat, double radius, Rng& rng) const override;
     double density_at(double lon, double lat) const;  // per steradian
-    std::size_t cells() const { return cell_count_; }
+    std::size_t cells() const;                        // cells holding probability
 
 private:
     struct Level {
-        std::vector<std::int64_t> pixel;   // sorted
-        std::vector<double> probability;   // in the same order
+        std::vector<std::int64_t> pixel;   // sorted; empty for a flat map's one dense level
+        std::vector<double> probability;   // in the same order (a dense level: by NESTED index)
+        double probability_of(std::int64_t pix) const;
+        double sum_over(std::int64_t begin, std::int64_t end) const;  // of the pixels in [begin, end)
     };
     std::map<int, Level> levels_;          // by order
-    std::vector<double> density_desc_;     // every cell's density, highest first
-    std::vector<double> mass_desc_;        // cumulative probability along density_desc_
     Eigen::Matrix3d to_map_;
-    std::size_t cell_count_ = 0;
+    void normalise();
+    // The cell holding a direction, if any holds probability there: its order and probability.
+    bool cell_at(double lon, double lat, int& order, double& probability) const;
 };
 
 // A cell's area in steradians at an order.

@@ -83,8 +83,9 @@ void check_value(const std::string& path, const std::string& column, std::int64_
     if (v < 0.0) refuse(path, column, "entry " + std::to_string(row + 1) + " is negative (" + detail::fmt("%g", v) + "; give 0 for a pixel holding nothing)");
 }
 
-// A flat map: one value per pixel of one nside, RING or NESTED, in column 1 (libhealpix-cxx's reader).
-std::vector<MapCell> flat_cells(fitshandle& in, const std::string& path) {
+// A flat map: one value per pixel of one nside, RING or NESTED, in column 1 (libhealpix-cxx's reader), kept as
+// one NESTED array.
+std::shared_ptr<const PixelMapRegion> flat_map(fitshandle& in, const std::string& path, const Eigen::Matrix3d& to_map) {
     if (!in.key_present("NSIDE")) refuse(path, "NSIDE", "the header has no NSIDE card");
     const long long nside = in.get_key<int64>("NSIDE");
     if (nside < 1 || nside > max_stated_map_nside || (nside & (nside - 1)) != 0)
@@ -95,16 +96,20 @@ std::vector<MapCell> flat_cells(fitshandle& in, const std::string& path) {
     if (in.nelems(1) != npix)
         refuse(path, column, "holds " + std::to_string(in.nelems(1)) + " values, not 12 NSIDE^2 = " + std::to_string(npix) +
                                  " (a partial map is not read: give every pixel, 0 where the map holds nothing)");
-    Healpix_Map<double> map;
-    read_Healpix_map_from_fits(in, map, 1);
-    for (int k = 0; k < map.Npix(); ++k) check_value(path, column, k, map[k]);  // entries numbered as in the file
-    if (map.Scheme() != NEST) map.swap_scheme();  // the cells are NESTED, whatever order the file came in
-    std::vector<MapCell> cells;
-    const int order = Healpix_Base::nside2order(static_cast<int>(nside));
-    for (int k = 0; k < map.Npix(); ++k)
-        if (map[k] > 0.0) cells.push_back({order, k, map[k]});
-    if (cells.empty()) refuse(path, column, "the map holds no probability (every pixel is 0)");
-    return cells;
+    std::vector<double> nested;
+    {
+        Healpix_Map<double> map;
+        read_Healpix_map_from_fits(in, map, 1);
+        bool any = false;
+        for (int k = 0; k < map.Npix(); ++k) {
+            check_value(path, column, k, map[k]);  // entries numbered as in the file
+            any = any || map[k] > 0.0;
+        }
+        if (!any) refuse(path, column, "the map holds no probability (every pixel is 0)");
+        if (map.Scheme() != NEST) map.swap_scheme();  // NESTED, whatever order the file came in
+        nested.assign(&map[0], &map[0] + map.Npix());
+    }
+    return std::make_shared<const PixelMapRegion>(Healpix_Base::nside2order(static_cast<int>(nside)), std::move(nested), to_map);
 }
 
 int column_named(const fitshandle& in, const std::string& name) {
@@ -161,18 +166,12 @@ std::shared_ptr<const PixelMapRegion> read_checked(const std::string& path, cons
     if (pixtype != "HEALPIX") refuse(path, "PIXTYPE", "is '" + pixtype + "', not 'HEALPIX'");
     check_frame(in, path, icrs_to_fitting != nullptr);
     const std::string ordering = string_key(in, path, "ORDERING", true);
-    std::vector<MapCell> cells;
-    if (ordering == "NUNIQ") {
-        cells = multi_order_cells(in, path);
-    } else if (ordering == "RING" || ordering == "NESTED") {
-        if (string_key(in, path, "INDXSCHM", false) == "EXPLICIT")
-            refuse(path, "INDXSCHM", "a partial map with explicit pixel indices is not read: give every pixel (INDXSCHM = 'IMPLICIT') or a NUNIQ map");
-        cells = flat_cells(in, path);
-    } else {
-        refuse(path, "ORDERING", "is '" + ordering + "': RING, NESTED or NUNIQ");
-    }
     const Eigen::Matrix3d to_map = icrs_to_fitting ? Eigen::Matrix3d(icrs_to_fitting->transpose()) : Eigen::Matrix3d::Identity();
-    return std::make_shared<const PixelMapRegion>(std::move(cells), to_map);
+    if (ordering == "NUNIQ") return std::make_shared<const PixelMapRegion>(multi_order_cells(in, path), to_map);
+    if (ordering != "RING" && ordering != "NESTED") refuse(path, "ORDERING", "is '" + ordering + "': RING, NESTED or NUNIQ");
+    if (string_key(in, path, "INDXSCHM", false) == "EXPLICIT")
+        refuse(path, "INDXSCHM", "a partial map with explicit pixel indices is not read: give every pixel (INDXSCHM = 'IMPLICIT') or a NUNIQ map");
+    return flat_map(in, path, to_map);
 }
 
 }  // namespace
