@@ -207,3 +207,22 @@ TEST_CASE("stated sky map: missing files, reinterpreted names and a map beside s
     CHECK(refused("sky_map = \"map.fits\"\nsample_lon_deg = [57.0]\nsample_lat_deg = [5.0]\n") == "sky_map @ p.toml");
     fs::remove_all(dir);
 }
+
+TEST_CASE("stated sky map: multi-order cells of very different orders rank by density and cover by their centres") {
+    // One cell at order 29 (a fraction of a milliarcsecond) and one at order 2 (15 deg), half the probability each.
+    const Healpix_Base2 fine(29, NEST), coarse(2, NEST);
+    const std::int64_t fine_pixel = fine.ang2pix(pointing(pi / 2 - lat0, lon0));
+    double far_lon = 0, far_lat = 0;
+    along(0, 40.0, far_lon, far_lat);  // 60 deg away along the major axis
+    const std::int64_t coarse_pixel = coarse.ang2pix(pointing(pi / 2 - far_lat, far_lon));
+    const PixelMapRegion map({{29, fine_pixel, 0.5}, {2, coarse_pixel, 0.5}}, Eigen::Matrix3d::Identity());
+    Rng rng = make_rng(6, "unused");
+    CHECK(map.rank_of(lon0, lat0, rng) == 0.0);                    // the fine cell is by far the denser
+    CHECK(map.rank_of(far_lon, far_lat, rng) == doctest::Approx(0.5));
+    CHECK(map.rank_of(lon0 + pi, -lat0, rng) == doctest::Approx(1.0));  // in no cell
+    CHECK(map.mass_within(lon0, lat0, 2.0 * deg, rng) == doctest::Approx(0.5));  // the fine cell's centre only
+    const vec3 c = coarse.pix2vec(coarse_pixel);
+    const pointing cp(c);
+    CHECK(map.mass_within(cp.phi, pi / 2 - cp.theta, 1e-3 * deg, rng) == doctest::Approx(0.5));  // a field on the coarse cell's centre
+    CHECK(map.cells() == 2);
+}

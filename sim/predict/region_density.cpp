@@ -10,6 +10,7 @@
 #include <healpix_cxx/healpix_base.h>
 #include <healpix_cxx/pointing.h>
 #include <healpix_cxx/rangeset.h>
+#include <healpix_cxx/vec3.h>
 
 #include "sim/base/units.hpp"
 #include "sim/physics/geometry.hpp"
@@ -136,11 +137,22 @@ double PixelMapRegion::rank_of(double lon, double lat, Rng&) const {
 double PixelMapRegion::mass_within(double lon, double lat, double radius, Rng&) const {
     const SkyPosition q = to_sky(to_map_ * unit_vector(lon, lat));
     const pointing ptg(pi / 2 - q.lat, q.lon);
+    const vec3 centre = ptg.to_vec3();
+    const double cos_radius = std::cos(std::min(radius, pi));
     double sum = 0.0;
     rangeset<int64> inside;
     for (const auto& [order, level] : levels_) {
-        nested_at(order).query_disc(ptg, std::min(radius, pi), inside);
-        for (tsize r = 0; r < inside.nranges(); ++r) sum += level.sum_over(inside.ivbegin(r), inside.ivend(r));
+        const Healpix_Base2 base = nested_at(order);
+        if (level.pixel.empty()) {
+            // A flat map's pixels (at most nside 1024): the disc's pixel ranges, then their sums.
+            base.query_disc(ptg, std::min(radius, pi), inside);
+            for (tsize r = 0; r < inside.nranges(); ++r) sum += level.sum_over(inside.ivbegin(r), inside.ivend(r));
+        } else {
+            // A multi-order map's cells, each by its centre: at a fine order (up to 29) the disc's own pixel ranges
+            // would be far more than the cells.
+            for (std::size_t k = 0; k < level.pixel.size(); ++k)
+                if (dotprod(base.pix2vec(level.pixel[k]), centre) >= cos_radius) sum += level.probability[k];
+        }
     }
     return std::min(sum, 1.0);
 }

@@ -68,8 +68,8 @@ public:
     // Density compared per steradian, so cells of different orders rank fairly; at one order that is the
     // probability per pixel. A direction in no cell has density 0. One pass over the cells: score asks once.
     double rank_of(double lon, double lat, Rng& rng) const override;
-    // The probability of the cells whose centres lie within `radius` (libhealpix-cxx's query_disc, which returns
-    // exactly the pixels whose centres are inside the disc).
+    // The probability of the cells whose centres lie within `radius` (for a flat map libhealpix-cxx's query_disc,
+    // which returns exactly the pixels whose centres are inside the disc; for a multi-order map each cell's centre).
     double mass_within(double lon, double lat, double radius, Rng& rng) const override;
     double density_at(double lon, double lat) const;  // per steradian
     std::size_t cells() const;                        // cells holding probability
