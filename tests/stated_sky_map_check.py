@@ -193,5 +193,14 @@ with tempfile.TemporaryDirectory() as work:
                            fits.Column(name="PROBDENSITY", format="D", array=np.array([1.0, 1.0]))], ORDERING="NUNIQ", **hp_keys)
     refused("overlap.fits", "UNIQ", "overlapping multi-order cells")
     refused("absent.fits", "sky_map", "a missing file")
+    # A header card with bytes outside printable ASCII (FITS Standard 4.0, 4.1.1 forbids them; Debian's cfitsio
+    # 4.2.0 overflows a buffer on such a table header, so they are refused before cfitsio reads it).
+    with open(os.path.join(ex, "nan.fits"), "rb") as fh:
+        raw = bytearray(fh.read())
+    at = raw.index(b"TTYPE1  =") + 11
+    raw[at:at + 4] = b"\xd7\xd7\xd7\xd7"
+    with open(os.path.join(ex, "not_ascii.fits"), "wb") as fh:
+        fh.write(raw)
+    refused("not_ascii.fits", "HDU 2", "a header card that is not ASCII")
 
 sys.exit(1 if failures else 0)

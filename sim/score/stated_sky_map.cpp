@@ -2,9 +2,12 @@
 #include "sim/score/stated_sky_map.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cctype>
 #include <cmath>
+#include <cstdlib>
 #include <filesystem>
+#include <fstream>
 #include <stdexcept>
 #include <vector>
 
@@ -40,9 +43,60 @@ void refuse_special_name(const std::string& path) {
         refuse(path, "sky_map", "the map's file name may not hold any of [ ] ( ) { } + | ! * ? or :// (FITS readers give them meanings)");
 }
 
+// cfitsio 4.2.0 (Debian 12) overflows a buffer (a strcpy in ffgtbp, stopped by _FORTIFY_SOURCE as an abort) on a
+// table header whose cards hold bytes outside printable ASCII, which the FITS Standard 4.0 (section 4.1.1) forbids
+// in headers anyway; fuzzing found it. So before cfitsio sees a file, the headers of its first two HDUs are read
+// here, by hand since no library reads FITS headers without that risk: 2880-byte blocks of 80-character cards up to
+// END, every byte 32-126, and HDU 1's data size (section 4.4.1.1: |BITPIX| / 8 * GCOUNT * (PCOUNT + NAXIS1 * ... *
+// NAXISm)) to find where HDU 2 starts. Nothing else is interpreted. Returns false where the file ends before a
+// header starts (no such HDU); `data_bytes` is the HDU's data size, padded to whole blocks.
+bool scan_header(std::ifstream& in, const std::string& path, int hdu, std::int64_t& data_bytes) {
+    const std::string field = "HDU " + std::to_string(hdu);
+    constexpr std::int64_t block_bytes = 2880, huge = std::int64_t{1} << 60;
+    std::int64_t bitpix = 0, pcount = 0, gcount = 1, axes_product = 1;
+    long long naxis = 0;
+    std::array<char, 2880> block{};
+    for (int b = 0; b < 1000; ++b) {
+        in.read(block.data(), block_bytes);
+        if (in.gcount() == 0 && b == 0) return false;
+        if (in.gcount() != block_bytes) refuse(path, field, "ends inside its header (a FITS file is made of 2880-byte blocks)");
+        for (int c = 0; c < 36; ++c) {
+            const char* card = block.data() + 80 * c;
+            for (int k = 0; k < 80; ++k)
+                if (static_cast<unsigned char>(card[k]) < 32 || static_cast<unsigned char>(card[k]) > 126)
+                    refuse(path, field, "header card " + std::to_string(36 * b + c + 1) + " holds a byte outside printable ASCII (FITS Standard 4.0, 4.1.1)");
+            const std::string key = upper_trimmed(std::string(card, 8));
+            if (key == "END") {
+                const std::int64_t bytes = naxis > 0 ? std::abs(bitpix) / 8 * gcount * std::min(huge, pcount + axes_product) : 0;
+                data_bytes = bytes >= huge || bytes < 0 ? huge : (bytes + block_bytes - 1) / block_bytes * block_bytes;
+                return true;
+            }
+            if (card[8] != '=') continue;
+            const long long v = std::strtoll(std::string(card + 10, 70).c_str(), nullptr, 10);
+            if (key == "BITPIX") bitpix = v;
+            else if (key == "NAXIS") naxis = v;
+            else if (key == "PCOUNT") pcount = std::clamp<long long>(v, 0, huge);
+            else if (key == "GCOUNT") gcount = std::clamp<long long>(v, 0, 1 << 20);
+            else if (key.rfind("NAXIS", 0) == 0) {
+                const std::int64_t n = std::clamp<long long>(v, 0, huge);
+                axes_product = n > 0 && axes_product > huge / n ? huge : axes_product * n;
+            }
+        }
+    }
+    refuse(path, field, "has no END card in its first 1000 header blocks");
+}
+
 // HDU 2's type, by cfitsio itself (libhealpix-cxx's fitshandle does not tell a table from an image); -1 if the
 // file has one HDU only. fits_open_diskfile takes the name literally.
 int second_hdu_type(const std::string& path) {
+    bool second = false;
+    {
+        std::ifstream in(path, std::ios::binary);
+        std::int64_t first_data = 0, second_data = 0;
+        if (!scan_header(in, path, 1, first_data)) refuse(path, "HDU 1", "is empty, not a FITS file");
+        in.seekg(static_cast<std::streamoff>(std::min<std::int64_t>(first_data, std::int64_t{1} << 60)), std::ios::cur);
+        second = in.good() && scan_header(in, path, 2, second_data);
+    }
     fitsfile* f = nullptr;
     int status = 0;
     if (fits_open_diskfile(&f, path.c_str(), READONLY, &status) != 0) {
@@ -50,12 +104,11 @@ int second_hdu_type(const std::string& path) {
         fits_get_errstatus(status, text);
         refuse(path, "HDU 1", std::string("is not a FITS file cfitsio can read (") + text + ")");
     }
-    int hdus = 0, type = -1;
-    fits_get_num_hdus(f, &hdus, &status);
-    if (status == 0 && hdus >= 2) fits_movabs_hdu(f, 2, &type, &status);
+    int type = -1;
+    if (second) fits_movabs_hdu(f, 2, &type, &status);  // HDU 2 only: counting every HDU would read every header
     int close_status = 0;
     fits_close_file(f, &close_status);
-    return status == 0 && hdus >= 2 ? type : -1;
+    return status == 0 && second ? type : -1;
 }
 
 std::string string_key(const fitshandle& in, const std::string& path, const std::string& key, bool required) {
@@ -127,6 +180,9 @@ std::vector<MapCell> multi_order_cells(fitshandle& in, const std::string& path) 
     const std::int64_t cap = 12LL * max_stated_map_nside * max_stated_map_nside;
     if (n > cap) refuse(path, "UNIQ", "holds " + std::to_string(n) + " cells, more than " + std::to_string(cap));
     if (in.nelems(density_col) != n) refuse(path, "PROBDENSITY", "holds a different number of entries than UNIQ");
+    // Before reading: libhealpix-cxx's column reader takes the address of the first element, which an empty
+    // column does not have.
+    if (n == 0) refuse(path, "PROBDENSITY", "the map holds no probability (no cells)");
     std::vector<int64> uniq;
     std::vector<double> density;
     in.read_entire_column(uniq_col, uniq);
