@@ -8,6 +8,7 @@ that fails, one that outlives its timeout, and a spec that mixes an external sol
 reported as such.
 """
 import csv
+import math
 import os
 import shutil
 import subprocess
@@ -44,6 +45,7 @@ with tempfile.TemporaryDirectory() as work:
             '[[settings]]\nname = "wayward"\n\n'
             f'[[settings]]\nname = "team"\nexternal = ["{python}", "{team}", "{wayward}"]\n\n'
             f'[[settings]]\nname = "team-wide"\nexternal = ["{python}", "{team}", "{wayward}", "--widen", "2"]\n\n'
+            f'[[settings]]\nname = "team-map"\nexternal = ["{python}", "{team}", "{wayward}", "--sky-map"]\n\n'
             '[[settings]]\nname = "broken"\nexternal = ["false"]\n\n'
             '[[settings]]\nname = "slow"\nexternal = ["sh", "-c", "sleep 30"]\nexternal_timeout_s = 1\n'))
     r = subprocess.run([wayward, "campaign", spec, "--out", os.path.join(work, "out"), "--quiet", "--threads", "2"],
@@ -52,7 +54,7 @@ with tempfile.TemporaryDirectory() as work:
     rows = rows_of(os.path.join(work, "out", "cases.csv"))
     by = {(row["seed"], row["settings"]): row for row in rows}
     seeds = sorted({row["seed"] for row in rows})
-    check(len(rows) == 10 and len(seeds) == 2, f"{len(rows)} rows: 2 systems x 5 settings")
+    check(len(rows) == 12 and len(seeds) == 2, f"{len(rows)} rows: 2 systems x 6 settings")
     for s in seeds:
         w, t, wide = by[(s, "wayward")], by[(s, "team")], by[(s, "team-wide")]
         # The team's solver reads the exercise's files, whose angles carry 1e-9 deg: a few milli-arcseconds apart.
@@ -62,6 +64,17 @@ with tempfile.TemporaryDirectory() as work:
         check(abs(m_t - m_w) < 1e-3 * m_w, f"seed {s}: its stated ellipse gives Wayward's normalised error ({m_t:.6f} against {m_w:.6f})")
         # cases.csv gives six decimals: each value is rounded by up to 5e-7, half of m_t by up to 2.5e-7.
         check(abs(m_wide - m_t / 2) <= 7.5e-7 + 1e-9 * m_t, f"seed {s}: an ellipse stated twice as wide halves it ({m_wide:.6f})")
+        # A stated HEALPix map fills map_rank: the solve's map is its 300 samples' kernel estimate of the same
+        # Gaussian, so it ranks the truth near 1 - exp(-m^2/2). Allowed 0.2: the estimate's relative noise
+        # sqrt(1 / (4 pi n h^2 f)) (the kernel estimator's variance, Scott 1992, Multivariate Density Estimation,
+        # ch. 6; h^2 = n^(-1/3), f in sigma units) is 0.14 at 1 sigma for n = 300, moving the rank by f / f_peak of
+        # that, 0.08; and the truth's pixel centre lies up to 0.18 of the minor sigma from it (pixel side <= sigma / 4),
+        # which moves a Gaussian rank by up to 0.61 * 0.18 = 0.11.
+        tm = by[(s, "team-map")]
+        gauss = 1 - math.exp(-0.5 * m_t ** 2)
+        check(tm["status"] == "ok" and tm["map_rank"] != "" and abs(float(tm["map_rank"]) - gauss) < 0.2,
+              f"seed {s}: the stated map's rank of the truth fills map_rank ({tm['map_rank'] or 'empty'}; the Gaussian's {gauss:.4f})")
+        check(by[(s, "team")]["map_rank"] == "", f"seed {s}: a stated ellipse alone leaves map_rank empty")
         check(by[(s, "broken")]["status"] != "ok" and "exited with status 1" in by[(s, "broken")]["note"],
               f"seed {s}: a program that fails is reported: {by[(s, 'broken')]['note'][:80]}")
         check(by[(s, "slow")]["status"] != "ok" and "took longer than external_timeout_s" in by[(s, "slow")]["note"],

@@ -10,6 +10,7 @@
 #include <benchmark/benchmark.h>
 
 #include "sim/bench/bench_integrate.hpp"
+#include "sim/bench/bench_region.hpp"
 #include "sim/bench/bench_search.hpp"
 #include "sim/bench/bench_model.hpp"
 #include "sim/bench/bench_solve.hpp"
@@ -65,6 +66,7 @@ int main(int argc, char** argv) {
         wayward::bench::register_integrate_benchmarks();
         wayward::bench::register_solve_benchmarks();
         wayward::bench::register_search_benchmarks();
+        wayward::bench::register_region_benchmarks();
         wayward::bench::register_model_benchmarks();
         int n = static_cast<int>(rest.size());
         benchmark::Initialize(&n, rest.data());

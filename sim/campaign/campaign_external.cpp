@@ -103,7 +103,7 @@ std::vector<Prediction> run_external_solver(const CampaignSettings& st, const Ex
     if (!fs::exists(file)) throw std::runtime_error("the external solver wrote no " + file);
     std::vector<Prediction> stated;
     try {
-        stated = parse_stated_predictions(detail::read_text_file(file), file);
+        stated = parse_stated_predictions(detail::read_text_file(file), file, &ex.brief);  // a sky_map beside it is read too
     } catch (const InputError& e) {
         throw std::runtime_error(e.what());
     }

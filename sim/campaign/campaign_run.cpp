@@ -193,7 +193,7 @@ std::vector<CaseRow> run_unit(const CampaignSpec& spec, const SystemData& data, 
                 r.detected = true;
                 r.hit = s.hit;
                 r.mahalanobis = s.mahalanobis;
-                r.map_rank = s.map_truth_rank.value_or(NAN);  // where the program stated its region as samples
+                r.map_rank = s.map_truth_rank.value_or(NAN);  // where the program stated its region as samples or a sky map
                 r.radius90_arcmin = NAN;
                 r.luck_fraction = s.luck_fraction_inside;
                 r.closest_year = s.closest_year;

@@ -399,7 +399,7 @@ int run_score(const ScoreArgs& args, std::ostream& out, Score* scored) {
                    [](const std::string& field, const std::string& why) { throw InputError("", 0, field, why); }, "--radius", "--ellipse");
         source = "your prediction";
     } else if (!args.prediction_file.empty()) {
-        const std::vector<Prediction> stated = parse_stated_predictions(detail::read_text_file(args.prediction_file), args.prediction_file);
+        const std::vector<Prediction> stated = parse_stated_predictions(detail::read_text_file(args.prediction_file), args.prediction_file, &ex.brief);
         if (stated.size() != 1)
             throw InputError(args.prediction_file, 0, "prediction", "holds " + std::to_string(stated.size()) + " predictions; score takes one");
         p = stated.front();
@@ -454,8 +454,9 @@ int run_score(const ScoreArgs& args, std::ostream& out, Score* scored) {
         out << "Probability the field covered, by the stated region: " << 100.0 * *sc.field_probability << "%\n" << std::setprecision(3);
     }
     if (sc.map_truth_rank)
-        out << (own || !args.prediction_file.empty() ? "By the stated samples' map: rank of the truth "
-                                                      : "By the solve's virtual bodies (" + std::string(why_samples_describe_region(p)) + "): rank of the truth ") << std::setprecision(1) << 100.0 * *sc.map_truth_rank
+        out << (!p.stated_map_file.empty()                         ? "By the stated sky map " + p.stated_map_file + ": rank of the truth "
+                : own || !args.prediction_file.empty() ? std::string("By the stated samples' map: rank of the truth ")
+                                                       : "By the solve's virtual bodies (" + std::string(why_samples_describe_region(p)) + "): rank of the truth ") << std::setprecision(1) << 100.0 * *sc.map_truth_rank
             << "%, the field covered " << 100.0 * *sc.map_field_probability << "%\n" << std::setprecision(3);
     out << "Luck curve (" << sc.luck.size() << " epochs, " << (sc.luck_from_track ? "predicted track" : "fixed point") << "): inside the field "
         << std::setprecision(1) << 100.0 * sc.luck_fraction_inside << "% of the window; closest agreement "

@@ -12,6 +12,7 @@
 #include <cmath>
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -21,6 +22,8 @@
 #include "sim/model/model.hpp"
 
 namespace wayward {
+
+class RegionDensity;  // region_density.hpp
 
 // The solve's parameter vector: the observed planets' scaled states (6 each, see pack_planets), then the hidden
 // body's parameters, of which some may be absent (a fixed distance, a circular or coplanar orbit).
@@ -93,6 +96,10 @@ struct Prediction {
     // The sky map smooths each group at its own scale (SkySample::group).
     std::vector<int> sample_group;
     std::vector<TrackPoint> track;
+    // A stated prediction's region given as a HEALPix map (a team's own, never the solver's): scored in place of
+    // samples; the file it came from, for what score prints. Shared, as copies of a prediction read the same map.
+    std::shared_ptr<const RegionDensity> stated_map;
+    std::string stated_map_file;
 };
 
 // Whether the samples, not the ellipse, describe the region: every sample was run through the model because the

@@ -4,13 +4,14 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <memory>
 
 #include <boost/math/quadrature/gauss.hpp>
 
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
 #include "sim/base/random.hpp"
-#include "sim/predict/sky_map.hpp"
+#include "sim/predict/region_density.hpp"
 
 namespace wayward {
 
@@ -61,13 +62,20 @@ Score score_prediction(const Brief& brief, const TruthEphemeris& truth_eph, cons
         s.truth_rank = 1.0 - std::exp(-0.5 * std::max(d2, 0.0));
         s.field_probability = gaussian_mass_in_circle(p.cov_ll, p.cov_lb, p.cov_bb, brief.field_radius_deg * 3600.0);
     }
-    if (samples_describe_region(p)) {
+    // The map of the region, where there is one beyond the Gaussian: a stated HEALPix map (exact over its
+    // pixels), or the samples' kernel density (estimated from draws); both answer the same two questions.
+    std::unique_ptr<RegionDensity> sampled;
+    const RegionDensity* region = p.stated_map.get();
+    if (!region && samples_describe_region(p)) {
         std::vector<SkySample> bodies;
         for (std::size_t k = 0; k < p.sample_lon.size(); ++k) bodies.push_back({p.sample_lon[k], p.sample_lat[k], p.sample_weight[k], group_of_sample(p, k)});
-        const SampleDensity map(bodies);
+        sampled = std::make_unique<SampledRegion>(bodies, 4000, 20000);
+        region = sampled.get();
+    }
+    if (region) {
         Rng rng = make_rng(1, "score map");  // a fixed stream: the score of a solution is the same every time
-        s.map_truth_rank = map.rank_of(s.true_lon, s.true_lat, 4000, rng);
-        s.map_field_probability = map.mass_within(p.lon, p.lat, brief.field_radius_deg * deg, 20000, rng);
+        s.map_truth_rank = region->rank_of(s.true_lon, s.true_lat, rng);
+        s.map_field_probability = region->mass_within(p.lon, p.lat, brief.field_radius_deg * deg, rng);
     }
     // Luck curve over the window (clipped to the span), on the prediction's own track where it has one.
     const double from = std::max(lo_year, p.epoch_year - window_years), to = std::min(hi_year, p.epoch_year + window_years);

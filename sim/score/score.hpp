@@ -33,7 +33,10 @@ struct Score {
     // the field (a circle of the brief's field radius at the predicted point) covered.
     std::optional<double> truth_rank, field_probability;
     // The same two by the solve's virtual bodies, where they describe the region (samples_describe_region): the
-    // map the search and the HEALPix file use, estimated from draws of its density (standard error <= 0.01).
+    // map the search and the HEALPix file use, estimated from draws of its density (standard error <= 0.01); or by
+    // a stated HEALPix map (Prediction::stated_map), summed exactly over its pixels: the rank is the probability
+    // of the pixels strictly denser than the truth's own pixel, the field's share that of the pixels whose centres
+    // lie inside the field.
     std::optional<double> map_truth_rank, map_field_probability;
     std::vector<LuckPoint> luck;
     double luck_fraction_inside = 0.0;        // of the window, separation <= field radius

@@ -1,9 +1,12 @@
 #include "sim/score/stated_prediction.hpp"
 
 #include <cmath>
+#include <filesystem>
 
 #include "sim/base/errors.hpp"
 #include "sim/base/units.hpp"
+#include "sim/record/record.hpp"
+#include "sim/score/stated_sky_map.hpp"
 #include "sim/solve/solve.hpp"
 
 namespace wayward {
@@ -32,7 +35,7 @@ void set_stated_region(Prediction& p, std::optional<double> radius_arcmin, std::
     ellipse_axes(p.cov_ll, p.cov_lb, p.cov_bb, p.semi_major_arcsec, p.semi_minor_arcsec, p.orientation_deg);
 }
 
-Prediction read_stated_prediction(detail::TableReader& r) {
+Prediction read_stated_prediction(detail::TableReader& r, const Brief* brief) {
     Prediction p;
     p.lon = wrap_two_pi(r.required_number("lon_deg") * deg);
     p.lat = r.required_number("lat_deg") * deg;
@@ -47,10 +50,20 @@ Prediction read_stated_prediction(detail::TableReader& r) {
     set_stated_region(p, radius, ellipse, [&r](const std::string& field, const std::string& why) { r.fail(field, why); }, "radius_arcmin",
                       ellipse && !radius ? "sigma_major_arcmin" : "position_angle_deg");
     read_virtual_bodies(r, p, true);
+    if (const std::optional<std::string> map = r.string("sky_map")) {
+        if (!p.sample_lon.empty()) r.fail("sky_map", "give the region as samples or as a sky map, not both");
+        if (map->empty()) r.fail("sky_map", "names no file");
+        // Relative to the prediction file, so a folder of prediction and map can be moved together.
+        const std::filesystem::path named(*map);
+        const std::filesystem::path file = named.is_absolute() ? named : std::filesystem::path(r.file()).parent_path() / named;
+        const Eigen::Matrix3d to_fitting = brief && brief->imported() ? icrs_to_fitting_frame(*brief) : Eigen::Matrix3d::Identity();
+        p.stated_map = read_stated_sky_map(file.lexically_normal().string(), brief && brief->imported() ? &to_fitting : nullptr);
+        p.stated_map_file = file.lexically_normal().string();
+    }
     return p;
 }
 
-std::vector<Prediction> parse_stated_predictions(const std::string& text, const std::string& file) {
+std::vector<Prediction> parse_stated_predictions(const std::string& text, const std::string& file, const Brief* brief) {
     const toml::table t = detail::parse_toml(text, file);
     detail::TableReader root(t, file, "");
     std::vector<Prediction> out;
@@ -58,12 +71,12 @@ std::vector<Prediction> parse_stated_predictions(const std::string& text, const 
         const auto tables = root.tables("prediction");
         for (std::size_t k = 0; k < tables.size(); ++k) {
             detail::TableReader r(*tables[k], file, "prediction[" + std::to_string(k + 1) + "]");
-            out.push_back(read_stated_prediction(r));
+            out.push_back(read_stated_prediction(r, brief));
             r.finish();
         }
         if (out.empty()) root.fail("prediction", "holds no prediction");
     } else {
-        out.push_back(read_stated_prediction(root));
+        out.push_back(read_stated_prediction(root, brief));
     }
     root.finish();
     return out;

@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "sim/exercise/exercise.hpp"
 #include "sim/io/toml_reader.hpp"
 #include "sim/predict/predict.hpp"
 
@@ -25,10 +26,13 @@ void set_stated_region(Prediction& p, std::optional<double> radius_arcmin, std::
 // One stated prediction from a table: lon_deg, lat_deg, epoch_year, and radius_arcmin or sigma_major_arcmin,
 // sigma_minor_arcmin, position_angle_deg (both optional), and optionally samples of its region: sample_lon_deg,
 // sample_lat_deg and sample_weight (weights optional: equal), scored through their kernel density as a solve's
-// virtual bodies are. Errors name the file, line and field.
-Prediction read_stated_prediction(detail::TableReader& r);
+// virtual bodies are; or, instead of samples, sky_map: a HEALPix probability map in FITS (stated_sky_map.hpp), its
+// path relative to the prediction file, in the exercise's own frame (or in ICRS where `brief` was imported from a
+// record). Errors name the file, line and field (the map's own errors name the FITS file and its card or column).
+Prediction read_stated_prediction(detail::TableReader& r, const Brief* brief = nullptr);
 
 // A prediction file's text: its top level is one prediction, or it holds [[prediction]] tables (one per epoch).
-std::vector<Prediction> parse_stated_predictions(const std::string& text, const std::string& file);
+// `brief`, where given, says the frame a sky map must be in (see above); without it, the invented frame.
+std::vector<Prediction> parse_stated_predictions(const std::string& text, const std::string& file, const Brief* brief = nullptr);
 
 }  // namespace wayward

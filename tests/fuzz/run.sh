@@ -11,7 +11,7 @@ scratch=$(mktemp -d)
 trap 'rm -rf "$scratch"' EXIT
 mkdir -p "$findings"
 status=0
-for reader in scenario campaign_spec brief answer_key solution observations observer cases telescope plan record; do
+for reader in scenario campaign_spec brief answer_key solution observations observer cases telescope plan record sky_map; do
   mkdir -p "$scratch/$reader"
   echo "wayward fuzz: $reader for ${seconds}s" >&2
   # -timeout: one input taking over 10 s is a hang; -rss_limit_mb: runaway memory is a finding too.
