@@ -170,7 +170,7 @@ std::string summary_text(const RehearsalResult& r, const Brief& b, const Telesco
 
 }  // namespace
 
-int run_search(const SearchArgs& args, std::ostream& out) {
+int run_search(const SearchArgs& args, std::ostream& out, std::string* table) {
     // Read and check everything first: nothing is written unless all of it is good.
     const Exercise ex = load_exercise(args.dir);
     const std::string sol_path = args.solution.empty() ? args.dir + "/solution.toml" : args.solution;
@@ -180,7 +180,11 @@ int run_search(const SearchArgs& args, std::ostream& out) {
     if (solution.exercise_sha256 != ex.brief.identity_sha256())
         throw InputError(sol_path, 0, "solution.exercise_sha256", "this solution belongs to another exercise");
     // A record brought in with `import` has no sealed truth to place among the stars: its fields are listed instead.
-    if (ex.brief.imported()) return run_field_list(args, ex, solution, out);
+    if (ex.brief.imported()) {
+        const int status = run_field_list(args, ex, solution, out);
+        if (table) *table = args.dir + "/search/fields.csv";
+        return status;
+    }
     Telescope tel;
     if (!args.telescope_file.empty()) tel = load_telescope(args.telescope_file);
     else if (ex.brief.telescope) tel = *ex.brief.telescope;
@@ -227,6 +231,7 @@ int run_search(const SearchArgs& args, std::ostream& out) {
     write_file_atomic(dir + "/summary.txt", summary);  // last: its presence marks a complete search folder
     out << summary;
     out << "Wrote " << dir << "/plan.csv, log.csv, nights.csv, candidates.csv, rehearsal.toml, search.png, summary.txt\n";
+    if (table) *table = dir + "/nights.csv";
     return 0;
 }
 

@@ -23,7 +23,9 @@ struct SearchArgs {
     std::string plan_file;           // the team's own plan (night,lon_deg,lat_deg)
     std::uint64_t seed = 1;          // weather, sky, chart and detections
 };
-int run_search(const SearchArgs& args, std::ostream& out);
+// `table`, when given, receives the path of the table the search wrote: DIR/search/nights.csv for a rehearsal,
+// DIR/search/fields.csv for the fields of an imported record.
+int run_search(const SearchArgs& args, std::ostream& out, std::string* table = nullptr);
 
 struct Exercise;
 struct Solution;

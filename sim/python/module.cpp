@@ -339,12 +339,9 @@ PYBIND11_MODULE(wayward, m) {
             a.seed = seed;
             if (!strategy.empty()) a.strategy = strategy;
             py::dict d;
-            d["text"] = printed([&](std::ostream& o) { run_search(a, o); });
-            // A record brought in with `import` has no rehearsal: its fields are listed instead.
-            if (load_brief(exercise_paths(dir).brief()).imported())
-                d["fields"] = csv_table(dir + "/search/fields.csv");
-            else
-                d["nights"] = csv_table(dir + "/search/nights.csv");
+            std::string table;  // the command says which table it wrote (fields for an imported record)
+            d["text"] = printed([&](std::ostream& o) { run_search(a, o, &table); });
+            d[table.ends_with("/fields.csv") ? "fields" : "nights"] = csv_table(table);
             return d;
         },
         py::arg("dir"), py::arg("nights") = 30, py::arg("seed") = 1, py::arg("strategy") = "",
