@@ -127,6 +127,8 @@ struct Histogram {
 Histogram bin_samples(const std::vector<double>& samples, int bins,
                       std::optional<std::pair<double, double>> range = std::nullopt);
 Series histogram_series(const Histogram& h, std::string label);
+// A series drawn as markers (no line), empty: the caller adds the points.
+Series point_series(std::string label, Marker marker, double point_size, Color color);
 // A panel holding one histogram: x label `label`, y label "count", no legend.
 Panel histogram(const std::vector<double>& samples, int bins, std::string label,
                 std::optional<std::pair<double, double>> range = std::nullopt);

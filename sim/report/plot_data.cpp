@@ -144,6 +144,16 @@ Histogram bin_samples(const std::vector<double>& samples, int bins, std::optiona
     return h;
 }
 
+Series point_series(std::string label, Marker marker, double point_size, Color color) {
+    Series s;
+    s.label = std::move(label);
+    s.style = Style::points;
+    s.marker = marker;
+    s.point_size = point_size;
+    s.color = color;
+    return s;
+}
+
 Series histogram_series(const Histogram& h, std::string label) {
     Series s;
     s.label = std::move(label);

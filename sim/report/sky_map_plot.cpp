@@ -40,22 +40,14 @@ void save_sky_map_png(const Brief& brief, const Prediction& p, const SkyMap& map
     // The regions from the widest down, so the most probable pixels are drawn last, on top.
     const plot::Color shades[3] = {{0.03, 0.27, 0.55, 1.0}, {0.26, 0.57, 0.78, 1.0}, {0.66, 0.81, 0.90, 1.0}};  // 50, 90, 99 %
     std::vector<plot::Series> layers;
-    plot::Series near;
-    near.label = "inside the elongation limit (never pointed at)";
-    near.style = plot::Style::points;
-    near.marker = plot::Marker::square;
-    near.point_size = 1.2;
-    near.color = plot::Color{0.84, 0.15, 0.16, 1.0};
+    plot::Series near = plot::point_series("inside the elongation limit (never pointed at)", plot::Marker::square, 1.2,
+                                           plot::Color{0.84, 0.15, 0.16, 1.0});
     const std::size_t widest = regions.empty() ? 0 : std::min(regions.back().pixels, ranked.size());
     // At most about 150 000 points: a wider region is thinned evenly (the picture, not the map).
     const std::size_t stride = std::max<std::size_t>(1, widest / 150000 + 1);
     for (std::size_t r = regions.size(); r-- > 0;) {
-        plot::Series s;
-        s.label = fmt("%g", regions[r].level * 100.0) + " % region (" + fmt("%.4g", regions[r].area_deg2) + " sq deg)";
-        s.style = plot::Style::points;
-        s.marker = plot::Marker::square;
-        s.point_size = 1.2;
-        s.color = shades[std::min<std::size_t>(r, 2)];
+        plot::Series s = plot::point_series(fmt("%g", regions[r].level * 100.0) + " % region (" + fmt("%.4g", regions[r].area_deg2) + " sq deg)",
+                                            plot::Marker::square, 1.2, shades[std::min<std::size_t>(r, 2)]);
         const std::size_t from = r == 0 ? 0 : regions[r - 1].pixels;
         for (std::size_t k = from; k < std::min(regions[r].pixels, ranked.size()); k += stride) {
             double lon = 0.0, lat = 0.0;
@@ -78,12 +70,8 @@ void save_sky_map_png(const Brief& brief, const Prediction& p, const SkyMap& map
     for (plot::Series& s : layers) panel.series.push_back(std::move(s));
     if (!near.x.empty()) panel.series.push_back(near);
 
-    plot::Series bodies;
-    bodies.label = "virtual bodies";
-    bodies.style = plot::Style::points;
-    bodies.marker = plot::Marker::circle;
-    bodies.point_size = 1.6;
-    bodies.color = plot::Color{0.94, 0.89, 0.26, 0.95};  // Okabe-Ito yellow: seen on every shade of blue
+    // Okabe-Ito yellow: seen on every shade of blue.
+    plot::Series bodies = plot::point_series("virtual bodies", plot::Marker::circle, 1.6, plot::Color{0.94, 0.89, 0.26, 0.95});
     for (std::size_t k = 0; k < p.sample_lon.size() && k < p.sample_lat.size(); ++k) {
         double lon = 0.0, lat = 0.0;
         in_map(p.sample_lon[k], p.sample_lat[k], lon, lat);
@@ -115,12 +103,7 @@ void save_sky_map_png(const Brief& brief, const Prediction& p, const SkyMap& map
     }
     if (p.semi_major_arcsec > 0.0) panel.series.push_back(ellipse);
     panel.series.push_back(field);
-    plot::Series centre;
-    centre.label = "predicted place";
-    centre.style = plot::Style::points;
-    centre.marker = plot::Marker::diamond;
-    centre.point_size = 5.0;
-    centre.color = plot::Color{0.0, 0.0, 0.0, 1.0};
+    plot::Series centre = plot::point_series("predicted place", plot::Marker::diamond, 5.0, plot::Color{0.0, 0.0, 0.0, 1.0});
     centre.x = {0.0};
     centre.y = {0.0};
     panel.series.push_back(centre);
