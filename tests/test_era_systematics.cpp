@@ -114,17 +114,10 @@ TEST_CASE("calibration with era systematics: the truth falls inside the stated 5
             if (sco0.mahalanobis) d2_none[i] = *sco0.mahalanobis * *sco0.mahalanobis;
         }
     });
-    std::size_t in50 = 0, in90 = 0, valid = 0;
-    double mean = 0.0;
-    for (double v : d2) {
-        if (v < 0) continue;
-        ++valid;
-        in50 += v <= 2.0 * std::log(2.0) ? 1 : 0;
-        in90 += v <= 2.0 * std::log(10.0) ? 1 : 0;
-        mean += v;
-    }
-    REQUIRE(valid == n);
-    mean /= static_cast<double>(n);
+    const testing::RegionTally tally = testing::tally_regions(d2);
+    REQUIRE(tally.valid == n);
+    const std::size_t in50 = tally.in50, in90 = tally.in90;
+    const double mean = tally.mean_d2;
     double mean_none = 0.0, in90_none = 0.0;
     for (std::size_t i = 0; i < 100; ++i) {
         mean_none += d2_none[i] / 100.0;

@@ -172,17 +172,10 @@ TEST_CASE("calibration on tutorial: the truth falls inside the stated 50 and 90 
         const Score sco = score_prediction(m.ex.exercise.brief, m.ex.key, s.prediction);
         if (sco.mahalanobis) d2[i] = *sco.mahalanobis * *sco.mahalanobis;
     });
-    std::size_t in50 = 0, in90 = 0, valid = 0;
-    double mean = 0.0;
-    for (double v : d2) {
-        if (v < 0) continue;
-        ++valid;
-        in50 += v <= 2.0 * std::log(2.0) ? 1 : 0;
-        in90 += v <= 2.0 * std::log(10.0) ? 1 : 0;
-        mean += v;
-    }
-    REQUIRE(valid == n);
-    mean /= static_cast<double>(n);
+    const testing::RegionTally tally = testing::tally_regions(d2);
+    REQUIRE(tally.valid == n);
+    const std::size_t in50 = tally.in50, in90 = tally.in90;
+    const double mean = tally.mean_d2;
     const double f50 = static_cast<double>(in50) / n, f90 = static_cast<double>(in90) / n;
     MESSAGE("tutorial, " << n << " seeds: inside the 50 % region " << f50 << ", the 90 % region " << f90 << ", mean d^2 " << mean);
     CHECK(std::abs(f50 - 0.50) <= 3.0 * std::sqrt(0.25 / n));
