@@ -181,8 +181,8 @@ void read_settings(TableReader& root, const std::string& file, const std::string
             s.external_timeout_s = r.number_or("external_timeout_s", 600.0);
             if (!(s.external_timeout_s > 0.0 && s.external_timeout_s <= 86400.0)) r.fail("external_timeout_s", "must be in (0, 86400] seconds");
             s.external_dir = base_dir.empty() ? "." : base_dir;
-            for (const char* key : {"circular", "coplanar", "ecc_sigma", "tilt_sigma_deg", "samples", "starts", "grid_distances", "grid_longitudes",
-                                    "neglect_light_time", "distance", "era_systematics"})
+            for (const char* key : {"circular", "coplanar", "ecc_sigma", "tilt_sigma_deg", "samples", "starts", "shape_starts", "grid_distances",
+                                    "grid_longitudes", "neglect_light_time", "distance", "era_systematics"})
                 if (r.has(key)) r.fail(key, "an external solver takes no options of Wayward's solver (give them to your program)");
             r.finish();
             spec.settings.push_back(std::move(s));
@@ -201,6 +201,7 @@ void read_settings(TableReader& root, const std::string& file, const std::string
         };
         o.samples = bounded("samples", o.samples, 20, 100000);
         o.starts = bounded("starts", o.starts, 1, 64);
+        o.shape_starts = r.boolean("shape_starts").value_or(true);
         o.grid_distances = bounded("grid_distances", o.grid_distances, 2, 100);
         o.grid_longitudes = bounded("grid_longitudes", o.grid_longitudes, 4, 360);
         if (r.boolean("neglect_light_time").value_or(false)) o.model.light_time = LightTime::neglected;

@@ -226,6 +226,7 @@ SolveOptions solve_options(const SolveArgs& a) {
     o.epoch_year = a.epoch_year;
     o.samples = a.samples;
     o.starts = a.starts;
+    o.shape_starts = !a.circular_starts_only;
     o.threads = a.threads;
     if (a.neglect_light_time) o.model.light_time = LightTime::neglected;
     if (!is_model_integrator(a.fitting_model)) {
@@ -284,6 +285,10 @@ int run_solve(const SolveArgs& args, std::ostream& out, std::ostream& progress_o
 
     out << std::setprecision(4);
     out << "Hidden body, " << o.describe() << " (" << s.model_runs << " model runs):\n";
+    if (s.shape_screens > 0)
+        out << "  the circular starts' best fit was poor (chi2 " << table_number("%.6g", s.shape_fallback_chi2) << "): " << s.shape_screens
+            << " eccentric or tilted orbits screened about the grid minima started " << s.shape_starts << " more fit"
+            << (s.shape_starts == 1 ? "" : "s") << "; the best is now " << (s.shape_start_won ? "from one of them" : "still the circular start's") << "\n";
     out << "  local minima (best first; probability: each basin's share by the Laplace approximation):\n";
     // Columns padded by displayed width and always two spaces apart, so long numbers never run together.
     out << "    " << pad("a (au)", 10) << "  " << pad("mean longitude (deg)", 20) << "  " << pad("mass (solar)", 12) << "  " << pad("e", 7)

@@ -52,6 +52,7 @@ struct SolveArgs {
     std::optional<double> epoch_year;
     int samples = 300;
     int starts = 4;
+    bool circular_starts_only = false;
     unsigned threads = 0;
     bool quiet = false;
     bool neglect_light_time = false;

@@ -31,6 +31,7 @@ struct Minimum {
     bool converged = false;
     int iterations = 0;
     double start_distance_au = 0.0, start_longitude = 0.0;
+    double start_eccentricity = 0.0, start_tilt = 0.0;  // of the start orbit (0: a circular grid start)
     Eigen::VectorXd parameters;     // the whole parameter vector (planets' corrections included); in memory only
     double probability = NAN;       // relative probability among the minima (Laplace approximation, below)
     std::vector<std::string> flags; // physical implausibilities (implausibility_flags), empty when none

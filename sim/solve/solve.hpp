@@ -45,6 +45,14 @@ struct Solution {
     bool covariance_scaled = false;
     double spacing_rule_au = 0.0;   // the rule's next distance (0 if fewer than 2 known planets)
     int model_runs = 0;
+    // Where the circular starts' best fit was poor: its chi2, the eccentric or tilted orbits screened about the
+    // grid minima, the fits started from them, and whether one of those became the best (0, 0, 0, false when the
+    // fallback did not run).
+    int starts = 0;                 // fits started in all
+    double shape_fallback_chi2 = 0.0;
+    int shape_screens = 0;
+    int shape_starts = 0;
+    bool shape_start_won = false;
     DetectionTest detection;            // is a hidden body demanded at all (known-bodies model against this one)
     GoodnessOfFit goodness;         // chi2 against its distribution where every sigma was recorded
     ClippingChange clipping;        // observations set aside (or restored) by the solve against the known fit

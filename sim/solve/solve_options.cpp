@@ -42,6 +42,7 @@ std::string SolveOptions::describe() const {
       << (coplanar ? ", coplanar" : ", inclined (prior sigma " + std::to_string(inclination_prior_rad / deg).substr(0, 4) + " deg on the tilt)");
     if (model.era_systematics == "offsets") s << ", era offsets fitted";
     if (model.era_systematics == "drifts") s << ", era offsets and drifts fitted";
+    if (!shape_starts && !(circular && coplanar)) s << ", circular starts only";
     return s.str();
 }
 
