@@ -15,16 +15,13 @@ import subprocess
 import sys
 import tempfile
 
+sys.dont_write_bytecode = True  # no __pycache__ in the source tree
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from check_common import check, finish  # noqa: E402
+
 wayward, src = os.path.abspath(sys.argv[1]), os.path.abspath(sys.argv[2])
 team = os.path.join(src, "tests", "team_solver.py")
 python = "/usr/bin/python3"
-failures = []
-
-
-def check(ok, what):
-    print(("ok   " if ok else "FAIL ") + what, flush=True)
-    if not ok:
-        failures.append(what)
 
 
 def spec_text(settings):
@@ -89,4 +86,4 @@ with tempfile.TemporaryDirectory() as work:
     check(r.returncode == 2 and "samples" in r.stderr and "external solver takes no options" in r.stderr,
           f"solver options beside an external solver are refused: {r.stderr.strip()}")
 
-sys.exit(1 if failures else 0)
+finish()

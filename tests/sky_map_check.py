@@ -10,7 +10,6 @@ import csv
 import math
 import os
 import re
-import subprocess
 import sys
 import tempfile
 import tomllib
@@ -18,28 +17,18 @@ import tomllib
 import healpy as hp
 import numpy as np
 
+sys.dont_write_bytecode = True  # no __pycache__ in the source tree
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from check_common import check, finish, quick_solved_with_sky_map, runner  # noqa: E402
+
 wayward, src = sys.argv[1], sys.argv[2]
 png = sys.argv[3] if len(sys.argv) > 3 else None
-failures = []
-
-
-def check(ok, what):
-    print(("ok   " if ok else "FAIL ") + what)
-    if not ok:
-        failures.append(what)
-
-
-def run(*args):
-    return subprocess.run([wayward, *args], capture_output=True, text=True)
+run = runner(wayward)
 
 
 with tempfile.TemporaryDirectory() as work:
-    ex = os.path.join(work, "ex")
-    r = run("new", os.path.join(src, "scenarios", "quick.toml"), "--seed", "3", "--out", ex)
-    assert r.returncode == 0, r.stderr
-    r = run("solve", ex, "--sky-map", "--quiet", "--threads", "2")
-    assert r.returncode == 0, r.stderr
-    line = next(l for l in r.stdout.splitlines() if l.startswith("Sky map at "))
+    ex, solved = quick_solved_with_sky_map(run, src, work)
+    line = next(l for l in solved.splitlines() if l.startswith("Sky map at "))
     print(line)
 
     # --- The map as healpy reads it (healpy.read_map with nest=None keeps the file's own ordering).
@@ -183,4 +172,4 @@ with tempfile.TemporaryDirectory() as work:
     check(abs(float(rows[0]["ra_deg"]) - lon0) < 1e-5 and abs(float(rows[0]["dec_deg"]) - lat0) < 1e-5,
           "its regions CSV lists ra_deg, dec_deg at healpy's pixel centres")
 
-sys.exit(1 if failures else 0)
+finish()

@@ -11,7 +11,6 @@ Usage: stated_sky_map_check.py WAYWARD SOURCE_DIR
 import math
 import os
 import re
-import subprocess
 import sys
 import tempfile
 import tomllib
@@ -20,18 +19,12 @@ import healpy as hp
 import numpy as np
 from astropy.io import fits
 
+sys.dont_write_bytecode = True  # no __pycache__ in the source tree
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from check_common import check, finish, quick_solved_with_sky_map, runner  # noqa: E402
+
 wayward, src = sys.argv[1], sys.argv[2]
-failures = []
-
-
-def check(ok, what):
-    print(("ok   " if ok else "FAIL ") + what, flush=True)
-    if not ok:
-        failures.append(what)
-
-
-def run(*args):
-    return subprocess.run([wayward, *args], capture_output=True, text=True)
+run = runner(wayward)
 
 
 def score(ex, pred_file):
@@ -51,11 +44,7 @@ def write_prediction(path, lon, lat, epoch, extra):
 RANK_SLOPE = math.exp(-0.5)
 
 with tempfile.TemporaryDirectory() as work:
-    ex = os.path.join(work, "ex")
-    r = run("new", os.path.join(src, "scenarios", "quick.toml"), "--seed", "3", "--out", ex)
-    assert r.returncode == 0, r.stderr
-    r = run("solve", ex, "--sky-map", "--quiet", "--threads", "2")
-    assert r.returncode == 0, r.stderr
+    ex, _ = quick_solved_with_sky_map(run, src, work)
     with open(os.path.join(ex, "solution.toml"), "rb") as fh:
         pred = tomllib.load(fh)["prediction"]
     lon, lat, epoch = pred["lon_deg"], pred["lat_deg"], pred["epoch_year"]
@@ -203,4 +192,4 @@ with tempfile.TemporaryDirectory() as work:
         fh.write(raw)
     refused("not_ascii.fits", "HDU 2", "a header card that is not ASCII")
 
-sys.exit(1 if failures else 0)
+finish()
