@@ -250,10 +250,14 @@ struct Chain {
     }
 };
 
-// Positions and velocities of every slot, 3 per body; slot 0 holds the barycentre.
+// Positions and velocities of every slot, 3 per body; slot 0 holds the barycentre. The double map's kick leaves
+// each Jacobi vector's length |x_j| and its inverse (r_known), which the next drift starts from (a kick does not
+// move the positions): one square root and one division per body and step fewer.
 template <class T>
 struct JacobiState {
     std::vector<T> x, v;
+    std::vector<double> r, inv_r;
+    bool r_known = false;
 };
 
 // Inertial (slot order) -> Jacobi, for positions, velocities or accelerations alike (the same linear map).
@@ -369,13 +373,28 @@ void kick(const Chain<T>& c, JacobiState<T>& s, double dt, Scratch<T>& w) {
         if (c.quad) add_quadrupole(*c.quad, c.gm, w.pos.data(), w.acc.data());
     }
     to_jacobi(c, w.acc.data(), w.accj.data());
+    if constexpr (plain) {
+        s.r.resize(n);
+        s.inv_r.resize(n);
+        for (std::size_t j = 1; j < n; ++j) {
+            const double* x = &s.x[3 * j];
+            s.r[j] = std::sqrt(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);  // as drift_bodies computes it
+            s.inv_r[j] = 1.0 / s.r[j];
+        }
+        s.r_known = true;
+    }
     for (std::size_t j = 1; j < n; ++j) {
         T* a = &w.accj[3 * j];
         if (j >= 2) {
             const T* x = &s.x[3 * j];
-            const T r2 = x[0] * x[0] + x[1] * x[1] + x[2] * x[2];
-            const T f = c.eta[j] / (r2 * sqrt(r2));
-            for (int k = 0; k < 3; ++k) a[k] += f * x[k];
+            if constexpr (plain) {
+                const double f = c.eta[j] * (s.inv_r[j] * s.inv_r[j] * s.inv_r[j]);
+                for (int k = 0; k < 3; ++k) a[k] += f * x[k];
+            } else {
+                const T r2 = x[0] * x[0] + x[1] * x[1] + x[2] * x[2];
+                const T f = c.eta[j] / (r2 * sqrt(r2));
+                for (int k = 0; k < 3; ++k) a[k] += f * x[k];
+            }
         }
         for (int k = 0; k < 3; ++k) s.v[3 * j + k] += dt * a[k];
     }
@@ -390,17 +409,25 @@ bool drift_bodies(const Chain<double>& c, JacobiState<double>& st, double dt) {
     constexpr std::size_t batch = 32;
     const std::size_t m = c.n - 1;
     if (m > batch || !std::isfinite(dt)) {
+        st.r_known = false;
         for (std::size_t j = 1; j < c.n; ++j)
             if (!kepler_drift_xv(c.eta[j], dt, &st.x[3 * j], &st.v[3 * j])) return false;
         return true;
     }
     double r0[batch], inv_r0[batch], eta0[batch], beta[batch], s[batch], ds[batch], g[batch][4];
+    const bool known = st.r_known;
+    st.r_known = false;
     for (std::size_t i = 0; i < m; ++i) {
         const double* x = &st.x[3 * (i + 1)];
         const double* v = &st.v[3 * (i + 1)];
         const double mu = c.eta[i + 1];
-        r0[i] = std::sqrt(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
-        inv_r0[i] = 1.0 / r0[i];
+        if (known) {
+            r0[i] = st.r[i + 1];
+            inv_r0[i] = st.inv_r[i + 1];
+        } else {
+            r0[i] = std::sqrt(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
+            inv_r0[i] = 1.0 / r0[i];
+        }
         eta0[i] = x[0] * v[0] + x[1] * v[1] + x[2] * v[2];
         beta[i] = 2.0 * (mu * inv_r0[i]) - (v[0] * v[0] + v[1] * v[1] + v[2] * v[2]);
     }
