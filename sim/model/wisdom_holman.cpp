@@ -51,13 +51,18 @@ void stumpff(T z, std::array<T, 4>& c) {
         z *= 0.25;
         ++quarterings;
     }
-    // 1/(2k+2)! and 1/(2k+3)! for k = 0..7: the next term is below 1e-20 for |z| <= 0.1.
+    // 1/(2k+2)! and 1/(2k+3)! for k = 0..7: the next term is below 1e-20 for |z| <= 0.1. The map's drifts have
+    // |z| <= 0.01 (a step of 1/96 of the shortest period: z ~ 0.004 at most; the outer bodies' far less), where
+    // fewer terms do, the next one staying below 5e-18, under the rounding of c2 ~ 1/2 and c3 ~ 1/6: five terms
+    // for |z| <= 0.01 (z^5 / 12! <= 2.1e-19), four for |z| <= 2e-3 (z^4 / 10! <= 4.4e-18), three for
+    // |z| <= 5e-5 (z^3 / 8! <= 3.1e-18).
     static constexpr double inv2[8] = {1.0 / 2, 1.0 / 24, 1.0 / 720, 1.0 / 40320, 1.0 / 3628800, 1.0 / 479001600,
                                        1.0 / 87178291200.0, 1.0 / 20922789888000.0};
     static constexpr double inv3[8] = {1.0 / 6, 1.0 / 120, 1.0 / 5040, 1.0 / 362880, 1.0 / 39916800, 1.0 / 6227020800.0,
                                        1.0 / 1307674368000.0, 1.0 / 355687428096000.0};
     T c2 = 0.0, c3 = 0.0;
-    for (int k = 7; k >= 0; --k) {
+    const double az = std::abs(value(z));
+    for (int k = az <= 5e-5 ? 2 : az <= 2e-3 ? 3 : az <= 0.01 ? 4 : 7; k >= 0; --k) {
         c2 = inv2[k] - z * c2;
         c3 = inv3[k] - z * c3;
     }
@@ -72,68 +77,111 @@ void stumpff(T z, std::array<T, 4>& c) {
     c = {c0, c1, c2, c3};
 }
 
-// The root s of the universal Kepler equation F(s) = r0 G1 + eta0 G2 + mu G3 - dt = 0 (G_k = s^k c_k(beta s^2),
-// F' = r > 0). False if it did not converge.
-bool kepler_root(double mu, double dt, double r0, double eta0, double beta, double& s) {
-    // Starting guess: the series of s(dt) to third order, from dt = r0 s + eta0 s^2/2 + (mu - beta r0) s^3/6 + ...
-    // reverted; for a step of 1/96 of a period its error is ~1e-6 of s, so one Halley step converges. A long
-    // drift (the series' terms no longer small) starts from dt / r0 and leaves the work to the iteration.
-    const double u = dt / r0, p = 0.5 * eta0 / r0, q = (mu - beta * r0) / (6.0 * r0);
-    const bool short_drift = std::abs(p * u) < 0.1 && std::abs(q * u * u) < 0.1;
-    s = short_drift ? u * (1.0 + u * (-p + u * (2.0 * p * p - q))) : u;
+// G_0..G_3 at s + d from their values at s (dG_k/ds = G_{k-1}, dG_0/ds = -beta G_1), to third order in d: for
+// |d| <= 1e-6 |s| the next term is below 1e-24 of them. Saves a Stumpff evaluation at the converged root.
+void shift_g(double beta, double d, double g[4]) {
+    const double e1 = d, e2 = 0.5 * d * d, e3 = e2 * d * (1.0 / 3.0);
+    const double g0 = g[0], g1 = g[1];
+    g[3] = g[3] + g[2] * e1 + g1 * e2 + g0 * e3;
+    g[2] = g[2] + g1 * e1 + g0 * e2 - beta * g1 * e3;
+    g[1] = g1 + g0 * e1 - beta * (g1 * e2 + g0 * e3);
+    g[0] = g0 - beta * (g1 * e1 + g0 * e2 - beta * g1 * e3);
+}
+
+// Starting guess for the root of the universal Kepler equation F(s) = r0 G1 + eta0 G2 + mu G3 - dt = 0 (G_k =
+// s^k c_k(beta s^2), F' = r > 0): the series of s(dt) to fourth order, from dt = r0 s + eta0 s^2/2 + (mu - beta
+// r0) s^3/6 - eta0 beta s^4/24 + ... reverted (s = u - p u^2 + (2p^2 - q) u^3 + (5pq - 5p^3 - w) u^4); for a
+// step of 1/96 of a period its error is ~1e-7 of s or less, so that the first Halley step both converges and
+// passes the test in kepler_iterate: one Stumpff evaluation per drift. A long drift (the series' terms no longer
+// small) starts from dt / r0 and leaves the work to the iteration.
+inline double kepler_guess(double mu, double dt, double r0, double inv_r0, double eta0, double beta) {
+    const double u = dt * inv_r0, p = 0.5 * eta0 * inv_r0, q = (mu - beta * r0) * inv_r0 * (1.0 / 6.0),
+                 w = -eta0 * beta * inv_r0 * (1.0 / 24.0);
+    const bool short_drift = std::abs(p * u) < 0.1 && std::abs(q * u * u) < 0.1 && std::abs(w * u * u * u) < 0.1;
+    return short_drift ? u * (1.0 + u * (-p + u * ((2.0 * p * p - q) + u * (5.0 * p * q - 5.0 * p * p * p - w)))) : u;
+}
+
+// One iteration on s: F and its derivatives from G_0..G_3 at s (left in g), then Halley's correction (iteration
+// `it` < 12) or Laguerre's (n = 5, Conway 1986), which converges from far worse guesses. Returns the correction
+// (non-finite when it failed); s is moved by it.
+inline double kepler_iterate(double mu, double dt, double r0, double eta0, double beta, int it, double& s, double g[4]) {
     std::array<double, 4> c{};
-    double g0 = 0.0, g1 = 0.0, g2 = 0.0, g3 = 0.0, r = r0;
-    auto evaluate = [&](double x) {
-        stumpff(beta * x * x, c);
-        g0 = c[0];
-        g1 = x * c[1];
-        g2 = x * x * c[2];
-        g3 = x * x * x * c[3];
-        r = r0 * g0 + eta0 * g1 + mu * g2;
-        return r0 * g1 + eta0 * g2 + mu * g3 - dt;
-    };
-    // Halley's iteration from the two-term series guess; Laguerre's (n = 5, Conway 1986) if that stalls, which
-    // converges from far worse guesses.
+    stumpff(beta * s * s, c);
+    g[0] = c[0];
+    g[1] = s * c[1];
+    g[2] = s * s * c[2];
+    g[3] = s * s * s * c[3];
+    const double f = r0 * g[1] + eta0 * g[2] + mu * g[3] - dt;
+    const double fp = r0 * g[0] + eta0 * g[1] + mu * g[2], fpp = eta0 * g[0] + (mu - beta * r0) * g[1];
+    double ds;
+    if (it < 12) {
+        ds = -f * fp / (fp * fp - 0.5 * f * fpp);  // -f / (fp - f fpp / (2 fp)), one division
+    } else {
+        const double n = 5.0;
+        const double disc = std::sqrt(std::abs((n - 1.0) * (n - 1.0) * fp * fp - n * (n - 1.0) * f * fpp));
+        ds = -n * f / (fp + std::copysign(disc, fp));
+    }
+    if (std::isfinite(ds)) s += ds;
+    return ds;
+}
+
+// Both iterations converge cubically: once a correction is below 1e-6 of s, the one after it would be below
+// 1e-18 of s, under the rounding of s itself.
+inline bool kepler_converged(double ds, double s) { return std::abs(ds) <= 1e-6 * std::abs(s) || ds == 0.0; }
+
+// The root s of the universal Kepler equation, and, when g is given, G_0..G_3 at it. False if it did not converge.
+bool kepler_root(double mu, double dt, double r0, double eta0, double beta, double& s, double* g = nullptr) {
+    s = kepler_guess(mu, dt, r0, 1.0 / r0, eta0, beta);
+    double gs[4];
     for (int it = 0; it < 60; ++it) {
-        const double f = evaluate(s);
-        const double fp = r, fpp = eta0 * g0 + (mu - beta * r0) * g1;
-        double ds;
-        if (it < 12) {
-            ds = -f / (fp - 0.5 * f * fpp / fp);
-        } else {
-            const double n = 5.0;
-            const double disc = std::sqrt(std::abs((n - 1.0) * (n - 1.0) * fp * fp - n * (n - 1.0) * f * fpp));
-            ds = -n * f / (fp + std::copysign(disc, fp));
-        }
+        const double ds = kepler_iterate(mu, dt, r0, eta0, beta, it, s, gs);
         if (!std::isfinite(ds)) return false;
-        s += ds;
-        // Both iterations converge cubically: once a correction is below 1e-6 of s, the one after it would be
-        // below 1e-18 of s, under the rounding of s itself.
-        if (std::abs(ds) <= 1e-6 * std::abs(s) || ds == 0.0) return true;
+        if (kepler_converged(ds, s)) {
+            if (g) {
+                for (int k = 0; k < 4; ++k) g[k] = gs[k];
+                shift_g(beta, ds, g);
+            }
+            return true;
+        }
     }
     return false;
+}
+
+// The end of a drift from G_0..G_3 at the root (f and g functions): false if the new distance is not positive.
+inline bool kepler_finish(double mu, double dt, double r0, double inv_r0, double eta0, const double g[4], double* x, double* v) {
+    const double r = r0 * g[0] + eta0 * g[1] + mu * g[2];
+    if (!(r > 0.0) || !std::isfinite(r)) return false;
+    // f and g in difference form (f - 1, g' - 1) so that the small change is not lost against the state.
+    const double inv_r = 1.0 / r, mu_r0 = mu * inv_r0;
+    const double f_m1 = -mu_r0 * g[2], gg = dt - mu * g[3];
+    const double fdot = -mu_r0 * g[1] * inv_r, gdot_m1 = -mu * g[2] * inv_r;
+    for (int k = 0; k < 3; ++k) {
+        const double x0 = x[k], v0 = v[k];
+        x[k] = x0 + (f_m1 * x0 + gg * v0);
+        v[k] = v0 + (fdot * x0 + gdot_m1 * v0);
+    }
+    return true;
+}
+
+// kepler_drift on three-component arrays.
+bool kepler_drift_xv(double mu, double dt, double* x, double* v) {
+    const double r0 = std::sqrt(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
+    if (!(r0 > 0.0) || !std::isfinite(dt)) return false;
+    const double inv_r0 = 1.0 / r0;
+    const double eta0 = x[0] * v[0] + x[1] * v[1] + x[2] * v[2];
+    const double beta = 2.0 * (mu * inv_r0) - (v[0] * v[0] + v[1] * v[1] + v[2] * v[2]);  // mu / a
+    double s = 0.0, g[4];
+    if (!kepler_root(mu, dt, r0, eta0, beta, s, g)) return false;
+    return kepler_finish(mu, dt, r0, inv_r0, eta0, g, x, v);
 }
 
 }  // namespace
 
 bool kepler_drift(double mu, double dt, Vec3& position, Vec3& velocity) {
-    const double r0 = position.norm();
-    if (!(r0 > 0.0) || !std::isfinite(dt)) return false;
-    const double eta0 = position.dot(velocity);
-    const double beta = 2.0 * mu / r0 - velocity.squaredNorm();  // mu / a
-    double s = 0.0;
-    if (!kepler_root(mu, dt, r0, eta0, beta, s)) return false;
-    std::array<double, 4> c{};
-    stumpff(beta * s * s, c);
-    const double g1 = s * c[1], g2 = s * s * c[2], g3 = s * s * s * c[3];
-    const double r = r0 * c[0] + eta0 * g1 + mu * g2;
-    if (!(r > 0.0) || !std::isfinite(r)) return false;
-    // f and g in difference form (f - 1, g' - 1) so that the small change is not lost against the state.
-    const double f_m1 = -mu * g2 / r0, g = dt - mu * g3;
-    const double fdot = -mu * g1 / (r0 * r), gdot_m1 = -mu * g2 / r;
-    const Vec3 x0 = position, v0 = velocity;
-    position = x0 + (f_m1 * x0 + g * v0);
-    velocity = v0 + (fdot * x0 + gdot_m1 * v0);
+    double x[3] = {position.x(), position.y(), position.z()}, v[3] = {velocity.x(), velocity.y(), velocity.z()};
+    if (!kepler_drift_xv(mu, dt, x, v)) return false;
+    position = Vec3(x[0], x[1], x[2]);
+    velocity = Vec3(v[0], v[1], v[2]);
     return true;
 }
 
@@ -176,13 +224,40 @@ struct Chain {
     std::vector<T> gm;                  // GM per slot
     std::vector<T> eta;                 // gm[0] + ... + gm[j]
     std::vector<T> gm_original;         // GM in the original order
+    std::vector<T> inv_eta;             // 1 / eta[j]
+    std::vector<T> share;               // gm[j] / eta[j]
     const CentralQuadrupole* quad = nullptr;
+    // The double map's quadrupole terms, computed once: Q row-major, its trace, 1.5 GM_reduced, and the share
+    // gm[j] / gm[0] of each body's quadrupole acceleration that acts back on the central body.
+    double q[9] = {}, q_trace = 0.0, q_scale = 0.0;
+    std::vector<double> q_reaction;
+
+    // Fills inv_eta, share and the quadrupole terms from gm, eta and quad.
+    void precompute() {
+        inv_eta.clear();
+        share.clear();
+        for (std::size_t j = 0; j < n; ++j) {
+            inv_eta.push_back(1.0 / eta[j]);
+            share.push_back(gm[j] / eta[j]);
+        }
+        if (!quad) return;
+        for (int a = 0; a < 3; ++a)
+            for (int b = 0; b < 3; ++b) q[3 * a + b] = quad->q(a, b);
+        q_trace = quad->q.trace();
+        q_scale = 1.5 * quad->gm_reduced;
+        q_reaction.clear();
+        for (std::size_t j = 0; j < n; ++j) q_reaction.push_back(value(gm[j]) / value(gm[0]));
+    }
 };
 
-// Positions and velocities of every slot, 3 per body; slot 0 holds the barycentre.
+// Positions and velocities of every slot, 3 per body; slot 0 holds the barycentre. The double map's kick leaves
+// each Jacobi vector's length |x_j| and its inverse (r_known), which the next drift starts from (a kick does not
+// move the positions): one square root and one division per body and step fewer.
 template <class T>
 struct JacobiState {
     std::vector<T> x, v;
+    std::vector<double> r, inv_r;
+    bool r_known = false;
 };
 
 // Inertial (slot order) -> Jacobi, for positions, velocities or accelerations alike (the same linear map).
@@ -191,11 +266,11 @@ void to_jacobi(const Chain<T>& c, const T* in, T* out) {
     T sum[3] = {c.gm[0] * in[0], c.gm[0] * in[1], c.gm[0] * in[2]};
     for (std::size_t j = 1; j < c.n; ++j) {
         for (int k = 0; k < 3; ++k) {
-            out[3 * j + k] = in[3 * j + k] - sum[k] / c.eta[j - 1];
+            out[3 * j + k] = in[3 * j + k] - sum[k] * c.inv_eta[j - 1];
             sum[k] += c.gm[j] * in[3 * j + k];
         }
     }
-    for (int k = 0; k < 3; ++k) out[k] = sum[k] / c.eta[c.n - 1];
+    for (int k = 0; k < 3; ++k) out[k] = sum[k] * c.inv_eta[c.n - 1];
 }
 
 template <class T>
@@ -203,7 +278,7 @@ void from_jacobi(const Chain<T>& c, const T* in, T* out) {
     T centre[3] = {in[0], in[1], in[2]};  // barycentre of slots 0..j, going down from j = n-1
     for (std::size_t j = c.n; j-- > 1;) {
         for (int k = 0; k < 3; ++k) {
-            centre[k] -= c.gm[j] / c.eta[j] * in[3 * j + k];
+            centre[k] -= c.share[j] * in[3 * j + k];
             out[3 * j + k] = in[3 * j + k] + centre[k];
         }
     }
@@ -211,7 +286,7 @@ void from_jacobi(const Chain<T>& c, const T* in, T* out) {
 }
 
 // add_central_quadrupole (integrate.hpp) on any scalar type, positions with stride 3: the same formula, for the
-// tangent map (the double map calls the original, so that its numbers do not change).
+// tangent map (the double map's kick has it in central_attractions, sharing each distance with the monopole).
 template <class T>
 void add_quadrupole(const CentralQuadrupole& cq, const std::vector<T>& gm, const T* pos, T* acc) {
     const double trace = cq.q.trace();
@@ -235,7 +310,41 @@ struct Scratch {
     std::vector<T> pos, acc, accj;
 };
 
-// v_j += dt * (Jacobi acceleration of H_int), j >= 1.
+// The double map's attractions between the central body and every other body j: the monopole for j >= 2 (the
+// pair (0, 1) is the first Kepler term) and the quadrupole (add_central_quadrupole's formula) for j >= 1, from one
+// distance and one division per body.
+void central_attractions(const Chain<double>& c, const double* pos, double* acc) {
+    for (std::size_t j = 1; j < c.n; ++j) {
+        const double dx = pos[3 * j] - pos[0], dy = pos[3 * j + 1] - pos[1], dz = pos[3 * j + 2] - pos[2];
+        const double r2 = dx * dx + dy * dy + dz * dz, r = std::sqrt(r2);
+        const double inv_r = 1.0 / r, inv_r2 = inv_r * inv_r, inv3 = inv_r2 * inv_r;
+        double* a0 = acc;
+        double* aj = acc + 3 * j;
+        if (j >= 2) {
+            const double f0 = c.gm[j] * inv3, fj = c.gm[0] * inv3;
+            a0[0] += f0 * dx;
+            a0[1] += f0 * dy;
+            a0[2] += f0 * dz;
+            aj[0] -= fj * dx;
+            aj[1] -= fj * dy;
+            aj[2] -= fj * dz;
+        }
+        if (c.quad) {
+            const double* q = c.q;
+            const double qr[3] = {q[0] * dx + q[1] * dy + q[2] * dz, q[3] * dx + q[4] * dy + q[5] * dz, q[6] * dx + q[7] * dy + q[8] * dz};
+            const double inv5 = inv3 * inv_r2;
+            const double rq = 5.0 * (dx * qr[0] + dy * qr[1] + dz * qr[2]) * inv5 * inv_r2;
+            const double rho[3] = {dx, dy, dz};
+            for (int a = 0; a < 3; ++a) {
+                const double qa = c.q_scale * ((2.0 * qr[a] + c.q_trace * rho[a]) * inv5 - rq * rho[a]);
+                aj[a] += qa;
+                a0[a] -= c.q_reaction[j] * qa;
+            }
+        }
+    }
+}
+
+// v_j += dt * (Jacobi acceleration of H_int), j >= 1. The scratch is sized once (no allocation per kick).
 template <class T>
 void kick(const Chain<T>& c, JacobiState<T>& s, double dt, Scratch<T>& w) {
     const std::size_t n = c.n;
@@ -243,7 +352,9 @@ void kick(const Chain<T>& c, JacobiState<T>& s, double dt, Scratch<T>& w) {
     w.acc.assign(3 * n, T(0.0));
     w.accj.resize(3 * n);
     from_jacobi(c, s.x.data(), w.pos.data());
-    for (std::size_t i = 0; i < n; ++i) {
+    constexpr bool plain = std::is_same_v<T, double>;
+    if constexpr (plain) central_attractions(c, w.pos.data(), w.acc.data());
+    for (std::size_t i = plain ? 1 : 0; i < n; ++i) {
         for (std::size_t j = std::max<std::size_t>(i + 1, i == 0 ? 2 : 0); j < n; ++j) {
             const T dx = w.pos[3 * j] - w.pos[3 * i], dy = w.pos[3 * j + 1] - w.pos[3 * i + 1],
                     dz = w.pos[3 * j + 2] - w.pos[3 * i + 2];
@@ -258,40 +369,98 @@ void kick(const Chain<T>& c, JacobiState<T>& s, double dt, Scratch<T>& w) {
             w.acc[3 * j + 2] -= fj * dz;
         }
     }
-    if (c.quad) {
-        if constexpr (std::is_same_v<T, double>) add_central_quadrupole(*c.quad, c.gm, w.pos.data(), 3, w.acc.data(), 3);
-        else add_quadrupole(*c.quad, c.gm, w.pos.data(), w.acc.data());
+    if constexpr (!plain) {
+        if (c.quad) add_quadrupole(*c.quad, c.gm, w.pos.data(), w.acc.data());
     }
     to_jacobi(c, w.acc.data(), w.accj.data());
+    if constexpr (plain) {
+        s.r.resize(n);
+        s.inv_r.resize(n);
+        for (std::size_t j = 1; j < n; ++j) {
+            const double* x = &s.x[3 * j];
+            s.r[j] = std::sqrt(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);  // as drift_bodies computes it
+            s.inv_r[j] = 1.0 / s.r[j];
+        }
+        s.r_known = true;
+    }
     for (std::size_t j = 1; j < n; ++j) {
         T* a = &w.accj[3 * j];
         if (j >= 2) {
             const T* x = &s.x[3 * j];
-            const T r2 = x[0] * x[0] + x[1] * x[1] + x[2] * x[2];
-            const T f = c.eta[j] / (r2 * sqrt(r2));
-            for (int k = 0; k < 3; ++k) a[k] += f * x[k];
+            if constexpr (plain) {
+                const double f = c.eta[j] * (s.inv_r[j] * s.inv_r[j] * s.inv_r[j]);
+                for (int k = 0; k < 3; ++k) a[k] += f * x[k];
+            } else {
+                const T r2 = x[0] * x[0] + x[1] * x[1] + x[2] * x[2];
+                const T f = c.eta[j] / (r2 * sqrt(r2));
+                for (int k = 0; k < 3; ++k) a[k] += f * x[k];
+            }
         }
         for (int k = 0; k < 3; ++k) s.v[3 * j + k] += dt * a[k];
     }
+}
+
+// The double map's drift of Jacobi vectors 1..n-1, one stage at a time over all of them: their Kepler solves are
+// independent, and each stage run over every body lets the processor overlap the bodies' long chains of
+// dependent operations (square root, divisions, the Stumpff series) instead of waiting on one body at a time.
+// Each body's numbers are exactly kepler_drift_xv's (the same functions in the same order); a body whose first
+// Halley step does not converge is left to kepler_drift_xv, which repeats that step and goes on.
+bool drift_bodies(const Chain<double>& c, JacobiState<double>& st, double dt) {
+    constexpr std::size_t batch = 32;
+    const std::size_t m = c.n - 1;
+    if (m > batch || !std::isfinite(dt)) {
+        st.r_known = false;
+        for (std::size_t j = 1; j < c.n; ++j)
+            if (!kepler_drift_xv(c.eta[j], dt, &st.x[3 * j], &st.v[3 * j])) return false;
+        return true;
+    }
+    double r0[batch], inv_r0[batch], eta0[batch], beta[batch], s[batch], ds[batch], g[batch][4];
+    const bool known = st.r_known;
+    st.r_known = false;
+    for (std::size_t i = 0; i < m; ++i) {
+        const double* x = &st.x[3 * (i + 1)];
+        const double* v = &st.v[3 * (i + 1)];
+        const double mu = c.eta[i + 1];
+        if (known) {
+            r0[i] = st.r[i + 1];
+            inv_r0[i] = st.inv_r[i + 1];
+        } else {
+            r0[i] = std::sqrt(x[0] * x[0] + x[1] * x[1] + x[2] * x[2]);
+            inv_r0[i] = 1.0 / r0[i];
+        }
+        eta0[i] = x[0] * v[0] + x[1] * v[1] + x[2] * v[2];
+        beta[i] = 2.0 * (mu * inv_r0[i]) - (v[0] * v[0] + v[1] * v[1] + v[2] * v[2]);
+    }
+    for (std::size_t i = 0; i < m; ++i) {
+        if (!(r0[i] > 0.0)) return false;
+        s[i] = kepler_guess(c.eta[i + 1], dt, r0[i], inv_r0[i], eta0[i], beta[i]);
+    }
+    for (std::size_t i = 0; i < m; ++i) ds[i] = kepler_iterate(c.eta[i + 1], dt, r0[i], eta0[i], beta[i], 0, s[i], g[i]);
+    for (std::size_t i = 0; i < m; ++i) {
+        double* x = &st.x[3 * (i + 1)];
+        double* v = &st.v[3 * (i + 1)];
+        const double mu = c.eta[i + 1];
+        if (std::isfinite(ds[i]) && kepler_converged(ds[i], s[i])) {
+            shift_g(beta[i], ds[i], g[i]);
+            if (!kepler_finish(mu, dt, r0[i], inv_r0[i], eta0[i], g[i], x, v)) return false;
+        } else if (!kepler_drift_xv(mu, dt, x, v)) {
+            return false;
+        }
+    }
+    return true;
 }
 
 // Every Jacobi vector on its Kepler orbit for dt; the barycentre in a straight line.
 template <class T>
 bool drift(const Chain<T>& c, JacobiState<T>& s, double dt) {
     for (int k = 0; k < 3; ++k) s.x[k] += dt * s.v[k];
-    for (std::size_t j = 1; j < c.n; ++j) {
-        if constexpr (std::is_same_v<T, double>) {
-            Vec3 x(s.x[3 * j], s.x[3 * j + 1], s.x[3 * j + 2]), v(s.v[3 * j], s.v[3 * j + 1], s.v[3 * j + 2]);
-            if (!kepler_drift(c.eta[j], dt, x, v)) return false;
-            for (int k = 0; k < 3; ++k) {
-                s.x[3 * j + static_cast<std::size_t>(k)] = x[k];
-                s.v[3 * j + static_cast<std::size_t>(k)] = v[k];
-            }
-        } else if (!kepler_drift_tangent(c.eta[j], dt, &s.x[3 * j], &s.v[3 * j])) {
-            return false;
-        }
+    if constexpr (std::is_same_v<T, double>) {
+        return drift_bodies(c, s, dt);
+    } else {
+        for (std::size_t j = 1; j < c.n; ++j)
+            if (!kepler_drift_tangent(c.eta[j], dt, &s.x[3 * j], &s.v[3 * j])) return false;
+        return true;
     }
-    return true;
 }
 
 // The corrector's stages (a, b), in units of the step, applied in order (Wisdom, Holman & Touma 1996; a_k =
@@ -336,9 +505,20 @@ std::vector<Op> corrector_ops(const std::vector<Stage>& stages, double sign) {
     return out;
 }
 
+// The ops, after a drift of `lead` days (merged into the first op when that is a drift: one drift fewer).
 template <class T>
-bool apply_ops(const Chain<T>& c, JacobiState<T>& s, double h, const std::vector<Op>& ops, Scratch<T>& w) {
-    for (const Op& op : ops) {
+bool apply_ops(const Chain<T>& c, JacobiState<T>& s, double h, const std::vector<Op>& ops, Scratch<T>& w, double lead = 0.0) {
+    std::size_t first = 0;
+    if (lead != 0.0) {
+        double d = lead;
+        if (!ops.empty() && !ops[0].is_kick) {
+            d += ops[0].amount * h;
+            first = 1;
+        }
+        if (!drift(c, s, d)) return false;
+    }
+    for (std::size_t i = first; i < ops.size(); ++i) {
+        const Op& op = ops[i];
         if (op.is_kick) kick(c, s, op.amount * h, w);
         else if (!drift(c, s, op.amount * h)) return false;
     }
@@ -363,15 +543,20 @@ public:
         for (const T& g : c.gm_original) gm_values_.push_back(value(g));
     }
 
-    // Records the real state of mapped state `s` at time t.
-    bool record(const JacobiState<T>& s, double t, Track& out) {
-        JacobiState<T> real = s;
-        if (!apply_ops(c_, real, h_, to_real_, w_)) return false;
+    // Records the real state at time t of mapped state `s`, which is a drift of `lead` days short of t.
+    WisdomHolmanOutcome record(const JacobiState<T>& s, double t, double lead, Track& out) {
+        real_ = s;  // reuses real_'s storage
+        if (!apply_ops(c_, real_, h_, to_real_, w_, lead)) return WisdomHolmanOutcome::kepler_not_converged;
+        return node(t, out) ? WisdomHolmanOutcome::ok : WisdomHolmanOutcome::non_finite_state;
+    }
+
+    // The node at t from the real state in real_.
+    bool node(double t, Track& out) {
         const std::size_t n = c_.n;
         pos_.resize(3 * n);
         vel_.resize(3 * n);
-        from_jacobi(c_, real.x.data(), pos_.data());
-        from_jacobi(c_, real.v.data(), vel_.data());
+        from_jacobi(c_, real_.x.data(), pos_.data());
+        from_jacobi(c_, real_.v.data(), vel_.data());
         state_.resize(6 * n);
         for (std::size_t j = 0; j < n; ++j)
             for (std::size_t k = 0; k < 3; ++k) {
@@ -422,20 +607,24 @@ public:
 
     // From real state x0 at t0, `steps` steps of h (signed), a node every `every` steps and at the end.
     WisdomHolmanOutcome run(JacobiState<T> s, double t0, std::size_t steps, int every, Track& out) {
+        const std::size_t nodes = steps / static_cast<std::size_t>(every) + 2, n = c_.n;
+        out.times.reserve(nodes);
+        out.states.reserve(6 * n * nodes);
+        out.accels.reserve(3 * n * nodes);
+        out.jerks.reserve(3 * n * nodes);
+        if (parameters_ > 0) out.tangents.reserve(tangent_rows_per_body * n * parameters_ * nodes);
         if (!apply_ops(c_, s, h_, to_mapped_, w_)) return WisdomHolmanOutcome::kepler_not_converged;
-        if (!record(s, t0, out)) return WisdomHolmanOutcome::non_finite_state;
+        if (const WisdomHolmanOutcome o = record(s, t0, 0.0, out); o != WisdomHolmanOutcome::ok) return o;
         const double half = 0.5 * h_;
         double pending = half;  // drift owed before the next kick
         for (std::size_t k = 1; k <= steps; ++k) {
-            // Drift-kick-drift; between nodes the two half drifts of consecutive steps are one drift.
+            // Drift-kick-drift, the two half drifts of consecutive steps as one drift. A node takes the mapped
+            // state half a drift short of its time, and its corrector's first drift takes that half drift too.
             if (!drift(c_, s, pending)) return WisdomHolmanOutcome::kepler_not_converged;
             kick(c_, s, h_, w_);
             pending = h_;
-            if (k % static_cast<std::size_t>(every) == 0 || k == steps) {
-                if (!drift(c_, s, half)) return WisdomHolmanOutcome::kepler_not_converged;
-                if (!record(s, t0 + static_cast<double>(k) * h_, out)) return WisdomHolmanOutcome::non_finite_state;
-                pending = half;
-            }
+            if (k % static_cast<std::size_t>(every) == 0 || k == steps)
+                if (const WisdomHolmanOutcome o = record(s, t0 + static_cast<double>(k) * h_, half, out); o != WisdomHolmanOutcome::ok) return o;
         }
         return WisdomHolmanOutcome::ok;
     }
@@ -447,6 +636,7 @@ private:
     std::size_t parameters_;
     std::vector<double> gm_values_;
     Scratch<T> w_;
+    JacobiState<T> real_;
     std::vector<T> pos_, vel_, acc_t_;
     std::vector<double> state_, acc_, jerk_;
 };
@@ -498,6 +688,7 @@ WisdomHolmanResult integrate_map(const System& s, double t_begin, double t_end, 
         c.gm.push_back(c.gm_original[c.original[j]]);
         c.eta.push_back(j > 0 ? c.eta[j - 1] + c.gm[j] : c.gm[j]);
     }
+    c.precompute();
     JacobiState<T> x0;
     std::vector<T> pos(3 * n), vel(3 * n);
     for (std::size_t j = 0; j < n; ++j)
