@@ -3,6 +3,8 @@
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <filesystem>
+#include <unistd.h>
 #include <cmath>
 #include <mutex>
 
@@ -126,6 +128,22 @@ TEST_CASE("a poor fit from the circular starts gets eccentric and tilted starts,
     const Score sco = score_prediction(m.ex.exercise.brief, m.ex.key, s.prediction);
     REQUIRE(sco.mahalanobis.has_value());
     CHECK(*sco.mahalanobis < 3.0);  // measured 1.6
+
+    // solution.toml keeps the fallback and the goodness of fit for the viewer and later reads.
+    for (const Solution* written : {&circular, &s}) {
+        const std::string path = (std::filesystem::temp_directory_path() / ("wayward-fallback-" + std::to_string(::getpid()) + ".toml")).string();
+        testing::write(path, solution_toml(*written));
+        const Solution back = load_solution(path);
+        std::filesystem::remove(path);
+        CHECK(back.goodness.poor() == written->goodness.poor());
+        CHECK(back.goodness.p_value == written->goodness.p_value);
+        CHECK(back.covariance_widened == written->covariance_widened);
+        CHECK(back.starts == written->starts);
+        CHECK(back.shape_screens == written->shape_screens);
+        CHECK(back.shape_starts == written->shape_starts);
+        CHECK(back.shape_start_won == written->shape_start_won);
+        CHECK(back.shape_fallback_chi2 == written->shape_fallback_chi2);
+    }
 }
 
 TEST_CASE("eccentric and tilted starts are not tried where the fit is good, nor where the orbit is held circular and flat") {

@@ -403,6 +403,16 @@ private:
                                    "%s: the body lowers χ² by %.1f; a detection needs %.1f",
                                    d.detected() ? "Detected" : "NOT detected (the record does not demand a hidden body)",
                                    std::max(0.0, d.delta_chi2), d.threshold);
+            if (s.goodness.poor())
+                ImGui::TextColored(ImVec4(1.0f, 0.6f, 0.3f, 1.0f),
+                                   "Poor fit: with every \u03c3 recorded, \u03c7\u00b2 this high has probability %.2g (a wrong minimum or "
+                                   "unmodelled systematics)%s",
+                                   s.goodness.p_value, s.covariance_widened ? "; the region is widened by \u03c7\u00b2/dof" : "");
+            if (s.shape_screens > 0)
+                ImGui::TextDisabled("After a poor fit (\u03c7\u00b2 %.1f) from the circular starts, %d eccentric or tilted orbits were "
+                                    "screened and %d more fits started; the best is %s",
+                                    s.shape_fallback_chi2, s.shape_screens, s.shape_starts,
+                                    s.shape_start_won ? "from one of them" : "still the circular start's");
             if (const std::string near = near_star_caution(near_star(a.exercise().brief, p), p.epoch_year); !near.empty())
                 ImGui::TextColored(ImVec4(1.0f, 0.6f, 0.3f, 1.0f), "%s", near.c_str());
         } else {

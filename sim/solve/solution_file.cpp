@@ -30,6 +30,17 @@ std::string solution_toml(const Solution& s) {
     head.insert("detection_threshold", s.detection.threshold);
     head.insert("detection_parameters", static_cast<int64_t>(s.detection.parameters));
     head.insert("detection_trials", static_cast<int64_t>(s.detection.trials));
+    // Goodness of fit, where every sigma was recorded (absent otherwise); the fallback to eccentric and tilted
+    // starts after a poor fit, where it ran.
+    if (s.goodness.applies) head.insert("goodness_p_value", s.goodness.p_value);
+    head.insert("covariance_widened", s.covariance_widened);
+    head.insert("starts", static_cast<int64_t>(s.starts));
+    if (s.shape_screens > 0) {
+        head.insert("shape_fallback_chi2", s.shape_fallback_chi2);
+        head.insert("shape_screens", static_cast<int64_t>(s.shape_screens));
+        head.insert("shape_starts", static_cast<int64_t>(s.shape_starts));
+        head.insert("shape_start_won", s.shape_start_won);
+    }
     root.insert("solution", head);
     toml::table h;
     const Elements el = s.best.elements();
@@ -191,6 +202,20 @@ Solution load_solution(const std::string& path) {
         if (!(s.detection.threshold >= 0.0 && s.detection.threshold < 1e12)) r.fail("detection_threshold", "must be in [0, 1e12)");
         s.detection.parameters = static_cast<int>(r.integer_in("detection_parameters", 0, 64).value_or(0));
         s.detection.trials = static_cast<int>(r.integer_in("detection_trials", 1, 1LL << 30).value_or(1));
+        if (const std::optional<double> p = r.number("goodness_p_value")) {
+            if (!(*p >= 0.0 && *p <= 1.0)) r.fail("goodness_p_value", "must be a probability in [0, 1]");
+            s.goodness.applies = true;
+            s.goodness.chi2 = s.chi2;
+            s.goodness.dof = s.dof;
+            s.goodness.p_value = *p;
+        }
+        s.covariance_widened = r.boolean("covariance_widened").value_or(false);
+        s.starts = static_cast<int>(r.integer_in("starts", 0, 1 << 20).value_or(0));
+        s.shape_fallback_chi2 = r.number_or("shape_fallback_chi2", 0.0);
+        if (!(std::isfinite(s.shape_fallback_chi2) && s.shape_fallback_chi2 >= 0.0)) r.fail("shape_fallback_chi2", "must be a finite chi2 >= 0");
+        s.shape_screens = static_cast<int>(r.integer_in("shape_screens", 0, 1 << 20).value_or(0));
+        s.shape_starts = static_cast<int>(r.integer_in("shape_starts", 0, 1 << 20).value_or(0));
+        s.shape_start_won = r.boolean("shape_start_won").value_or(false);
         r.finish();
     }
     if (const toml::table* h = root.table("hidden")) {
