@@ -652,10 +652,13 @@ Solution solve(const Exercise& ex, const SolveOptions& o, const SolveProgress& p
                 }
             }
             if (candidate < fits.size()) {
-                // The polish re-weights the setup; if the new basin does not end better, the old weights return.
+                // The polish re-weights the setup and re-clips; if the new basin does not end better, the old
+                // weights return. Better: a lower chi2 per degree of freedom, since each polish keeps its own set
+                // of observations (a basin that sets more aside would win on chi2 alone).
                 const ModelSetup weights_before = setup;
+                const double per_dof_before = best.chi2 / static_cast<double>(fit_dof(prob));
                 LeastSquaresResult other = polish(setup, prob, fits[candidate].x, cancelled);
-                if (other.evaluated && other.chi2 < best.chi2) {
+                if (other.evaluated && other.chi2 / static_cast<double>(fit_dof(prob)) < per_dof_before) {
                     best = std::move(other);
                     best_start = candidate;
                 } else {
