@@ -87,7 +87,7 @@ Command add_solve(CLI::App& app) {
     c->add_option("--samples", sv.samples, "covariance samples for the ellipse check")->capture_default_str();
     c->add_option("--starts", sv.starts, "grid minima refined")->capture_default_str();
     c->add_flag("--circular-starts-only", sv.circular_starts_only,
-                "start the fits from the grid's circular orbits only (default: also from eccentric or tilted orbits about them, where the priors allow)");
+                "after a poor fit, do not try eccentric or tilted starts about the grid minima (default: try them where the priors allow)");
     c->add_option("--threads", sv.threads, "threads (0: all cores; results do not depend on it)")->capture_default_str();
     c->add_flag("--quiet", sv.quiet, "no progress output");
     c->add_flag("--neglect-light-time", sv.neglect_light_time, "leave light time out of the model");

@@ -6,7 +6,8 @@
 // its mass (one model run per grid node, then a linear least-squares solve for the mass and the planets'
 // corrections); (3) the best distinct grid minima start Levenberg-Marquardt fits of all parameters (the
 // planets' Jacobian columns are held at their known-fit values while the hidden body's are re-differenced;
-// the best minimum is then polished with the full Jacobian); (4) covariance (J^T W J)^-1, scaled by the
+// the best minimum is then polished with the full Jacobian; where that fit is poor, eccentric and tilted starts
+// about the grid minima are tried too); (4) covariance (J^T W J)^-1, scaled by the
 // reduced chi2 where weights were estimated; (5) the sky position at the epoch with its 1-sigma ellipse by
 // linear propagation, checked by sampling the covariance, and the radius that holds 90% of the samples.
 // Priors enter as extra weighted residuals. Units: solar masses, au, radians inside; arcsec / arcmin out.

@@ -27,8 +27,9 @@ struct SolveOptions {
     int grid_distances = 10;
     int grid_longitudes = 16;
     int starts = 4;                        // distinct grid minima refined by Levenberg-Marquardt
-    // Where the orbit may be eccentric or tilted: each chosen grid minimum is also screened with eccentric and
-    // tilted shapes, and the best that beats the circular orbit starts one more fit (solve.cpp).
+    // Where the circular starts' best fit is poor and the orbit may be eccentric or tilted: each chosen grid
+    // minimum is screened again with eccentric and tilted shapes, and the best that beats the circular orbit
+    // starts one more fit (solve.cpp).
     bool shape_starts = true;
     int samples = 300;                     // covariance samples for the ellipse check and the 90% radius
     std::optional<double> epoch_year;      // default: the brief's first search epoch
